@@ -1,0 +1,71 @@
+"""The application factory. Nothing connects to a database at import time."""
+
+from __future__ import annotations
+
+from contextlib import asynccontextmanager
+from pathlib import Path
+
+import plotly
+from fastapi import FastAPI
+from fastapi.responses import FileResponse
+from fastapi.staticfiles import StaticFiles
+
+from .db.session import Database
+from .engine import ENGINE_VERSION
+from .settings import PROJECT_ROOT, Settings
+from .web import api, pages
+from .web.errors import install_error_handlers
+from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
+from .web.templating import make_templates
+
+PLOTLY_JS = Path(plotly.__file__).parent / "package_data" / "plotly.min.js"
+
+
+def create_app(settings: Settings | None = None, database: Database | None = None) -> FastAPI:
+    """Build the app. ``database`` lets tests share a connection; by default one is made
+    from ``settings.database_url`` when the app starts."""
+    settings = settings or Settings()
+
+    @asynccontextmanager
+    async def lifespan(app: FastAPI):
+        owned = app.state.db is None
+        if owned:
+            app.state.db = Database(settings.database_url)
+        try:
+            yield
+        finally:
+            if owned:
+                app.state.db.dispose()
+                app.state.db = None
+
+    app = FastAPI(
+        title="Tankbook",
+        version=ENGINE_VERSION,
+        description="Gas material balance and reserves for a portfolio of gas fields.",
+        lifespan=lifespan,
+        max_body_size=settings.max_upload_bytes,
+        telemetry={"tracing": False, "metrics": False, "logs": False, "operation_spans": False},
+    )
+    app.state.settings = settings
+    app.state.db = database
+    app.state.templates = make_templates()
+    install_error_handlers(app)
+    app.add_middleware(CrossSiteGuardMiddleware)
+    app.add_middleware(SecurityHeadersMiddleware, hsts=settings.behind_tls)
+
+    @app.get("/vendor/plotly.min.js", include_in_schema=False)
+    def plotly_js():
+        return FileResponse(
+            PLOTLY_JS,
+            media_type="text/javascript",
+            headers={"Cache-Control": "public, max-age=31536000, immutable"},
+        )
+
+    @app.get("/favicon.ico", include_in_schema=False)
+    def favicon():
+        return FileResponse(PROJECT_ROOT / "static" / "favicon.svg", media_type="image/svg+xml")
+
+    app.mount("/static", StaticFiles(directory=PROJECT_ROOT / "static"), name="static")
+    app.include_router(api.router)
+    app.include_router(pages.router)
+    return app

@@ -1,0 +1,1 @@
+"""Database layer: SQLAlchemy models and session handling."""

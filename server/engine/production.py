@@ -1,0 +1,34 @@
+"""Cumulative production at survey times."""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def cumulative_at_times(t_days, period_end_t_days, period_volume):
+    """Cumulative volume at given times from per-period volumes.
+
+    Each period's volume is taken as produced evenly between the previous period's
+    end and its own end, so the cumulative is piecewise linear; before the first
+    period it is zero and after the last it stays at the total.
+
+    Parameters
+    ----------
+    t_days : array
+        Times at which the cumulative is wanted [days from any common epoch].
+    period_end_t_days : array
+        End of each production period, ascending [days].
+    period_volume : array
+        Volume produced in each period [any unit; the result has the same unit].
+    """
+    t = np.asarray(t_days, float)
+    ends = np.asarray(period_end_t_days, float)
+    vol = np.asarray(period_volume, float)
+    if ends.size == 0:
+        return np.zeros_like(t)
+    if np.any(np.diff(ends) <= 0):
+        raise ValueError("production periods must be in ascending order without repeats")
+    first_start = ends[0] - (ends[1] - ends[0] if ends.size > 1 else 30.4375)
+    knots_t = np.concatenate([[first_start], ends])
+    knots_v = np.concatenate([[0.0], np.cumsum(vol)])
+    return np.interp(t, knots_t, knots_v, left=0.0, right=knots_v[-1])

@@ -1,0 +1,186 @@
+"""Read models for pages and the API: plain dataclasses built from stored rows.
+
+Pages never compute estimates: they read the newest stored estimate of each field.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
+
+from sqlalchemy import func, select
+from sqlalchemy.orm import Session, selectinload
+
+from ..db.models import Estimate, Field, PressureSurvey, VolumetricEstimate, Well
+
+
+@dataclass(frozen=True)
+class VolumetricRange:
+    low_bscf: float
+    best_bscf: float
+    high_bscf: float
+    estimate_date: dt.date
+    author: str
+
+
+@dataclass(frozen=True)
+class EstimateSummary:
+    id: int
+    status: str
+    method: str
+    message: str
+    giip_low_bscf: float | None
+    giip_best_bscf: float | None
+    giip_high_bscf: float | None
+    eur_bscf: float | None
+    recovery_factor_frac: float | None
+    cumulative_gas_bscf: float
+    remaining_bscf: float | None
+    flags: list
+    inputs_fingerprint: str
+    engine_version: str
+    computed_at: dt.datetime
+
+
+@dataclass(frozen=True)
+class PortfolioRow:
+    field_id: int
+    name: str
+    asset: str
+    basin: str
+    estimate: EstimateSummary | None
+    volumetric: VolumetricRange | None
+    last_survey_date: dt.date | None
+
+    @property
+    def dynamic_to_volumetric(self) -> float | None:
+        """Ratio of the dynamic best GIIP to the volumetric best estimate."""
+        if self.estimate is None or self.estimate.giip_best_bscf is None or self.volumetric is None:
+            return None
+        return self.estimate.giip_best_bscf / self.volumetric.best_bscf
+
+
+@dataclass(frozen=True)
+class FieldDetail:
+    summary: PortfolioRow
+    datum_depth_ft: float
+    reservoir_temperature_degF: float
+    initial_pressure_psia: float
+    abandonment_pressure_psia: float
+    description: str
+    wells: list[dict]
+    detail: dict  # the engine result as stored
+
+
+def _summary(e: Estimate | None) -> EstimateSummary | None:
+    if e is None:
+        return None
+    return EstimateSummary(
+        e.id,
+        e.status,
+        e.method,
+        e.message,
+        e.giip_low_bscf,
+        e.giip_best_bscf,
+        e.giip_high_bscf,
+        e.eur_bscf,
+        e.recovery_factor_frac,
+        e.cumulative_gas_bscf,
+        e.remaining_bscf,
+        list(e.flags or []),
+        e.inputs_fingerprint,
+        e.engine_version,
+        e.computed_at,
+    )
+
+
+def _volumetric(v: VolumetricEstimate | None) -> VolumetricRange | None:
+    if v is None:
+        return None
+    return VolumetricRange(v.giip_low_bscf, v.giip_best_bscf, v.giip_high_bscf, v.estimate_date, v.author)
+
+
+def latest_estimates(session: Session, field_ids) -> dict[int, Estimate]:
+    """Newest estimate per field, in one query."""
+    newest = (
+        select(Estimate.field_id, func.max(Estimate.id).label("id"))
+        .where(Estimate.field_id.in_(list(field_ids)))
+        .group_by(Estimate.field_id)
+        .subquery()
+    )
+    rows = session.execute(select(Estimate).join(newest, Estimate.id == newest.c.id)).scalars()
+    return {e.field_id: e for e in rows}
+
+
+def _latest_volumetrics(session: Session, field_ids) -> dict[int, VolumetricEstimate]:
+    out: dict[int, VolumetricEstimate] = {}
+    for v in session.execute(
+        select(VolumetricEstimate)
+        .where(VolumetricEstimate.field_id.in_(list(field_ids)))
+        .order_by(VolumetricEstimate.estimate_date, VolumetricEstimate.id)
+    ).scalars():
+        out[v.field_id] = v
+    return out
+
+
+def _last_surveys(session: Session, field_ids) -> dict[int, dt.date]:
+    rows = session.execute(
+        select(Well.field_id, func.max(PressureSurvey.survey_date))
+        .join(PressureSurvey, PressureSurvey.well_id == Well.id)
+        .where(Well.field_id.in_(list(field_ids)))
+        .group_by(Well.field_id)
+    ).all()
+    return {fid: d for fid, d in rows}
+
+
+def portfolio_rows(session: Session) -> list[PortfolioRow]:
+    """One row per field with its current estimate and latest volumetric range."""
+    fields = (
+        session.execute(select(Field).options(selectinload(Field.asset)).order_by(Field.name)).scalars().all()
+    )
+    ids = [f.id for f in fields]
+    est = latest_estimates(session, ids)
+    vol = _latest_volumetrics(session, ids)
+    last = _last_surveys(session, ids)
+    return [
+        PortfolioRow(
+            f.id,
+            f.name,
+            f.asset.name,
+            f.asset.basin,
+            _summary(est.get(f.id)),
+            _volumetric(vol.get(f.id)),
+            last.get(f.id),
+        )
+        for f in fields
+    ]
+
+
+def field_detail(session: Session, field_id: int) -> FieldDetail | None:
+    """Everything the field page shows, or None for an unknown field."""
+    f = session.get(Field, field_id)
+    if f is None:
+        return None
+    est = latest_estimates(session, [f.id]).get(f.id)
+    vol = _latest_volumetrics(session, [f.id]).get(f.id)
+    last = _last_surveys(session, [f.id]).get(f.id)
+    row = PortfolioRow(f.id, f.name, f.asset.name, f.asset.basin, _summary(est), _volumetric(vol), last)
+    wells = [
+        {
+            "id": w.id,
+            "name": w.name,
+            "compartment": w.compartment,
+            "gauge_reference_depth_ft": w.gauge_reference_depth_ft,
+        }
+        for w in f.wells
+    ]
+    return FieldDetail(
+        row,
+        f.datum_depth_ft,
+        f.reservoir_temperature_degF,
+        f.initial_pressure_psia,
+        f.abandonment_pressure_psia,
+        f.description,
+        wells,
+        dict(est.detail) if est else {},
+    )

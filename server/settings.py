@@ -1,0 +1,56 @@
+"""Typed settings, read from the environment (prefix ``TANKBOOK_``) or a ``.env`` file."""
+
+from __future__ import annotations
+
+import secrets
+from pathlib import Path
+from typing import Literal
+
+from pydantic import Field, model_validator
+from pydantic_settings import BaseSettings, SettingsConfigDict
+
+PROJECT_ROOT = Path(__file__).resolve().parent.parent
+_LOCAL_HOSTS = {"127.0.0.1", "localhost", "::1"}
+
+
+class Settings(BaseSettings):
+    """Application settings. Build with ``Settings()``; nothing is read at import time."""
+
+    model_config = SettingsConfigDict(env_prefix="TANKBOOK_", env_file=".env", extra="ignore")
+
+    database_url: str = Field(
+        default=f"sqlite:///{PROJECT_ROOT / 'var' / 'tankbook.sqlite3'}",
+        description="SQLAlchemy URL; SQLite file by default, PostgreSQL for a team.",
+    )
+    secret_key: str | None = Field(
+        default=None,
+        description="Secret for signing tokens. Required outside local use; generated per run locally.",
+    )
+    environment: Literal["local", "production", "test"] = "local"
+    host: str = "127.0.0.1"
+    port: int = 8000
+    standard_conditions: Literal["oilfield", "iso"] = "oilfield"
+    display_units: Literal["oilfield", "si"] = "oilfield"
+    atmosphere_psia: float = Field(default=14.696, gt=10, lt=16)
+    max_upload_bytes: int = Field(default=20 * 1024 * 1024, gt=0)
+    run_jobs_inline: bool = Field(
+        default=True, description="Run recompute jobs right after an upload in the request."
+    )
+    behind_tls: bool = False
+
+    @model_validator(mode="after")
+    def _refuse_insecure(self) -> Settings:
+        if self.secret_key is None:
+            if self.environment == "production" or self.host not in _LOCAL_HOSTS:
+                raise ValueError(
+                    "TANKBOOK_SECRET_KEY must be set (at least 32 characters) when Tankbook is "
+                    "not running locally"
+                )
+            self.secret_key = secrets.token_urlsafe(32)
+        elif len(self.secret_key) < 32:
+            raise ValueError("TANKBOOK_SECRET_KEY must be at least 32 characters")
+        return self
+
+    @property
+    def is_sqlite(self) -> bool:
+        return self.database_url.startswith("sqlite")

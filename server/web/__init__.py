@@ -1,0 +1,1 @@
+"""Web layer: HTML pages, the JSON API, chart builders and security middleware."""

@@ -1,0 +1,119 @@
+"""Server-rendered pages. Routes stay thin: parse, call a service, render plain data."""
+
+from __future__ import annotations
+
+import base64
+import binascii
+import dataclasses
+from typing import Annotated
+
+from fastapi import APIRouter, File, Form, HTTPException, Request, UploadFile
+from fastapi.responses import HTMLResponse
+
+from ..services import jobs
+from ..services.ingest.kinds import UPLOAD_KINDS, file_kind
+from ..services.ingest.service import commit_upload, validate_upload
+from ..services.portfolio import field_detail, portfolio_rows
+from .charts import pz_figure
+from .deps import DatabaseDep, FormTokenChecked, SessionDep, SettingsDep
+from .security import CSRF_COOKIE, new_form_token
+
+router = APIRouter()
+
+
+def render(request: Request, template: str, context: dict, status_code: int = 200) -> HTMLResponse:
+    """Render a page; every page gets a fresh form token (also set as a cookie)."""
+    token = request.cookies.get(CSRF_COOKIE) or new_form_token()
+    response = request.app.state.templates.TemplateResponse(
+        request, template, {**context, "csrf_token": token}, status_code=status_code
+    )
+    response.set_cookie(
+        CSRF_COOKIE,
+        token,
+        httponly=True,
+        samesite="strict",
+        secure=request.app.state.settings.behind_tls,
+    )
+    response.headers["Cache-Control"] = "no-store"
+    return response
+
+
+@router.get("/", response_class=HTMLResponse, name="portfolio")
+def portfolio_page(request: Request, session: SessionDep):
+    rows = portfolio_rows(session)
+    return render(request, "portfolio.html", {"rows": rows, "title": "Portfolio"})
+
+
+@router.get("/fields/{field_id}", response_class=HTMLResponse, name="field_page")
+def field_page(request: Request, field_id: int, session: SessionDep):
+    detail = field_detail(session, field_id)
+    if detail is None:
+        raise HTTPException(status_code=404, detail="no such field")
+    vol = dataclasses.asdict(detail.summary.volumetric) if detail.summary.volumetric else None
+    figure = pz_figure(detail.detail, vol)
+    return render(request, "field.html", {"f": detail, "pz_figure": figure, "title": detail.summary.name})
+
+
+@router.get("/upload", response_class=HTMLResponse, name="upload_page")
+def upload_page(request: Request):
+    return render(request, "upload.html", {"kinds": _kinds(), "title": "Upload"})
+
+
+def _kinds():
+    return [file_kind(k) for k in UPLOAD_KINDS]
+
+
+@router.post("/upload", response_class=HTMLResponse, dependencies=[FormTokenChecked])
+async def upload_submit(
+    request: Request,
+    session: SessionDep,
+    db: DatabaseDep,
+    settings: SettingsDep,
+    kind: Annotated[str, Form()],
+    action: Annotated[str, Form()] = "preview",
+    replace: Annotated[bool, Form()] = False,
+    accept_warnings: Annotated[bool, Form()] = False,
+    file: Annotated[UploadFile | None, File()] = None,
+    staged: Annotated[str, Form()] = "",
+    filename: Annotated[str, Form()] = "",
+):
+    if kind not in UPLOAD_KINDS:
+        raise HTTPException(status_code=422, detail=f"unknown upload kind {kind!r}")
+    if file is not None and file.filename:
+        data = await file.read()
+        filename = file.filename
+    else:
+        try:
+            data = base64.b64decode(staged.encode(), validate=True)
+        except (binascii.Error, ValueError):
+            raise HTTPException(status_code=422, detail="choose a file to upload") from None
+    if not data:
+        raise HTTPException(status_code=422, detail="the file is empty")
+    plan = validate_upload(
+        session,
+        kind=kind,
+        data=data,
+        filename=filename,
+        replace=replace,
+        atmosphere_psia=settings.atmosphere_psia,
+    )
+    context = {
+        "kinds": _kinds(),
+        "title": "Upload",
+        "plan": plan,
+        "report": plan.report.as_dict(),
+        "preview": plan.preview(),
+        "kind": kind,
+        "replace": replace,
+        "filename": filename,
+        "staged": base64.b64encode(data).decode(),
+        "committed": None,
+    }
+    if action == "commit" and plan.report.ok and (accept_warnings or not plan.report.warnings):
+        upload = commit_upload(session, plan, accept_warnings=accept_warnings, actor="web")
+        session.commit()
+        if settings.run_jobs_inline:
+            jobs.drain(db)
+        context["committed"] = upload
+    status = 200 if plan.report.ok else 422
+    return render(request, "upload.html", context, status_code=status)

@@ -1,0 +1,113 @@
+"""Pydantic schemas of the JSON API (units in every field name)."""
+
+from __future__ import annotations
+
+import datetime as dt
+from typing import Any, Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+
+class Schema(BaseModel):
+    model_config = ConfigDict(from_attributes=True)
+
+
+class VolumetricRead(Schema):
+    low_bscf: float
+    best_bscf: float
+    high_bscf: float
+    estimate_date: dt.date
+    author: str
+
+
+class EstimateRead(Schema):
+    id: int
+    status: Literal["ok", "refused", "error"]
+    method: str
+    message: str
+    giip_low_bscf: float | None
+    giip_best_bscf: float | None
+    giip_high_bscf: float | None
+    eur_bscf: float | None
+    recovery_factor_frac: float | None
+    cumulative_gas_bscf: float
+    remaining_bscf: float | None
+    flags: list[Any]
+    inputs_fingerprint: str
+    engine_version: str
+    computed_at: dt.datetime
+
+
+class PortfolioRowRead(Schema):
+    field_id: int
+    name: str
+    asset: str
+    basin: str
+    estimate: EstimateRead | None
+    volumetric: VolumetricRead | None
+    last_survey_date: dt.date | None
+    dynamic_to_volumetric: float | None
+
+
+class WellRead(Schema):
+    id: int
+    name: str
+    compartment: str | None
+    gauge_reference_depth_ft: float | None
+
+
+class FieldRead(Schema):
+    summary: PortfolioRowRead
+    datum_depth_ft: float
+    reservoir_temperature_degF: float
+    initial_pressure_psia: float
+    abandonment_pressure_psia: float
+    description: str
+    wells: list[WellRead]
+    detail: dict[str, Any]
+
+
+class ProblemRead(Schema):
+    row: int | None
+    column: str | None
+    value: str | None
+    message: str
+    severity: Literal["error", "warning"]
+
+
+class ReportRead(Schema):
+    kind: str
+    rows_total: int
+    error_count: int
+    warning_count: int
+    problems: list[ProblemRead]
+    problems_not_shown: int
+
+
+class UploadPreviewRead(Schema):
+    kind: str
+    filename: str
+    rows_total: int
+    to_insert: int
+    to_replace: int
+    unchanged: int
+    fields: list[int]
+
+
+class UploadResultRead(Schema):
+    status: Literal["committed", "unchanged", "dry_run", "rejected", "needs_confirmation"]
+    upload_id: int | None = None
+    report: ReportRead
+    preview: UploadPreviewRead
+
+
+class UploadRowsBody(BaseModel):
+    """A JSON upload: rows as objects whose keys are the file kind's column names."""
+
+    rows: list[dict[str, str | float | int | None]] = Field(max_length=200_000)
+    filename: str = Field(default="api.json", max_length=255)
+
+
+class HealthRead(BaseModel):
+    status: Literal["ok"]
+    engine_version: str

@@ -1,0 +1,108 @@
+"""A live Tankbook (uvicorn in a thread, demo portfolio in a fresh SQLite file) and
+Debian's Chromium driven by Playwright. Never downloads a browser."""
+
+from __future__ import annotations
+
+import shutil
+import socket
+import threading
+import time
+from pathlib import Path
+
+import pytest
+import uvicorn
+
+from server.app import create_app
+from server.db.migrate import upgrade
+from server.db.session import Database
+from server.services import jobs
+from server.services.demo import load_demo
+from server.settings import Settings
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+SCREENSHOTS = Path(__file__).resolve().parents[2] / "var" / "screenshots"
+
+
+def pytest_collection_modifyitems(items):
+    for item in items:
+        if "tests/browser" in str(item.fspath):
+            item.add_marker(pytest.mark.browser)
+
+
+@pytest.fixture(scope="session")
+def browser():
+    if CHROMIUM is None:
+        pytest.skip("Debian's chromium is not installed (apt-get install chromium)")
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as pw:
+        b = pw.chromium.launch(
+            executable_path=CHROMIUM,
+            headless=True,
+            args=[
+                "--no-sandbox",
+                "--disable-gpu",
+                "--disable-dev-shm-usage",
+                "--disable-background-networking",
+                "--disable-component-update",
+                "--disable-sync",
+                "--no-first-run",
+            ],
+        )
+        yield b
+        b.close()
+
+
+@pytest.fixture
+def page(browser):
+    context = browser.new_context(viewport={"width": 1280, "height": 900})
+    p = context.new_page()
+    p.set_default_timeout(15000)
+    yield p
+    context.close()
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+@pytest.fixture(scope="session")
+def live_server(tmp_path_factory):
+    url = f"sqlite:///{tmp_path_factory.mktemp('live') / 'live.sqlite3'}"
+    upgrade(url)
+    db = Database(url)
+    with db.session() as s:
+        load_demo(s)
+    jobs.drain(db)
+    db.dispose()
+    port = _free_port()
+    settings = Settings(environment="test", secret_key="b" * 40, database_url=url, port=port)
+    server = uvicorn.Server(
+        uvicorn.Config(create_app(settings), host="127.0.0.1", port=port, log_level="warning")
+    )
+    thread = threading.Thread(target=server.run, daemon=True)
+    thread.start()
+    deadline = time.time() + 20
+    while not server.started:
+        if time.time() > deadline:
+            raise RuntimeError("live server did not start")
+        time.sleep(0.05)
+    yield f"http://127.0.0.1:{port}"
+    server.should_exit = True
+    thread.join(timeout=10)
+
+
+@pytest.fixture
+def console_errors(page):
+    errors: list[str] = []
+    page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+    page.on("pageerror", lambda e: errors.append(str(e)))
+    return errors
+
+
+@pytest.fixture(scope="session")
+def screenshot_dir():
+    SCREENSHOTS.mkdir(parents=True, exist_ok=True)
+    return SCREENSHOTS

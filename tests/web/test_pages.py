@@ -1,0 +1,153 @@
+"""Pages and their JSON twins: key elements, headers, uploads through the web form."""
+
+import json
+import re
+
+from sqlalchemy import select
+
+from server.db.models import Estimate
+from server.services import jobs
+from tests.factories import add_volumetric_history, make_field
+
+
+def _seed(db):
+    with db.session() as s:
+        f = make_field(s, name="Upland")
+        add_volumetric_history(s, f)
+        jobs.enqueue_field_recompute(s, [f.id], reason="test")
+        fid = f.id
+    jobs.drain(db)
+    return fid
+
+
+def test_portfolio_lists_fields_with_estimates(db, client):
+    fid = _seed(db)
+    r = client.get("/")
+    assert r.status_code == 200
+    assert "Upland" in r.text and f"/fields/{fid}" in r.text
+    assert "qualified reservoir" in r.text  # the caution is on every page
+    api = client.get("/api/portfolio").json()
+    row = next(x for x in api if x["field_id"] == fid)
+    assert row["estimate"]["status"] == "ok"
+    assert 95 < row["estimate"]["giip_best_bscf"] < 105
+    assert row["dynamic_to_volumetric"] == row["estimate"]["giip_best_bscf"] / 100
+
+
+def test_field_page_embeds_chart_data_without_inline_script(db, client):
+    fid = _seed(db)
+    r = client.get(f"/fields/{fid}")
+    assert r.status_code == 200
+    block = re.search(r'<script type="application/json" id="pz-figure">(.*?)</script>', r.text, re.S)
+    fig = json.loads(block.group(1))
+    names = [t["name"] for t in fig["data"]]
+    assert any(n.startswith("fitted line") for n in names)
+    assert any(n.startswith("abandonment") for n in names)
+    assert any(n.startswith("volumetric") for n in names)
+    # every <script> is either external or a JSON data block
+    for tag in re.findall(r"<script[^>]*>", r.text):
+        assert "src=" in tag or 'type="application/json"' in tag
+    csp = r.headers["content-security-policy"]
+    assert "script-src 'self'" in csp and "unsafe-inline" not in csp.split("script-src")[1].split(";")[0]
+    assert r.headers["x-content-type-options"] == "nosniff"
+    twin = client.get(f"/api/fields/{fid}").json()
+    assert twin["summary"]["name"] == "Upland"
+    assert len(twin["detail"]["points"]) > 5
+
+
+def test_unknown_field_is_a_clean_404(db, client):
+    r = client.get("/fields/999999")
+    assert r.status_code == 404 and "no such field" in r.text and "Traceback" not in r.text
+    assert client.get("/api/fields/999999").json() == {"detail": "no such field"}
+
+
+def test_plotly_is_served_locally(client):
+    r = client.get("/vendor/plotly.min.js")
+    assert r.status_code == 200 and r.headers["content-type"].startswith("text/javascript")
+    assert "max-age" in r.headers["cache-control"]
+
+
+def _form_token(client):
+    page = client.get("/upload")
+    return re.search(r'name="csrf_token" value="([^"]+)"', page.text).group(1)
+
+
+def test_upload_form_previews_then_commits_and_recomputes(db, client):
+    fid = _seed(db)
+    token = _form_token(client)
+    csv_text = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,1500\n"
+    r = client.post(
+        "/upload",
+        data={"kind": "surveys", "csrf_token": token, "action": "preview"},
+        files={"file": ("s.csv", csv_text, "text/csv")},
+    )
+    assert r.status_code == 200 and "Would add 1" in r.text
+    staged = re.search(r'name="staged" value="([^"]+)"', r.text).group(1)
+    r = client.post(
+        "/upload",
+        data={
+            "kind": "surveys",
+            "csrf_token": token,
+            "action": "commit",
+            "staged": staged,
+            "filename": "s.csv",
+        },
+    )
+    assert r.status_code == 200 and "Stored upload" in r.text
+    with db.session() as s:
+        n = len(s.execute(select(Estimate).where(Estimate.field_id == fid)).scalars().all())
+    assert n == 2
+
+
+def test_upload_form_reports_errors(db, client):
+    _seed(db)
+    token = _form_token(client)
+    bad = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,abc\n"
+    r = client.post(
+        "/upload", data={"kind": "surveys", "csrf_token": token}, files={"file": ("bad.csv", bad, "text/csv")}
+    )
+    assert r.status_code == 422
+    assert "is not a number" in r.text and "Store these rows" not in r.text
+
+
+def test_form_without_token_is_refused(client):
+    r = client.post("/upload", data={"kind": "surveys"}, files={"file": ("s.csv", b"x", "text/csv")})
+    assert r.status_code == 403
+
+
+def test_cross_site_post_is_refused(client):
+    token = _form_token(client)
+    r = client.post(
+        "/upload",
+        data={"kind": "surveys", "csrf_token": token},
+        files={"file": ("s.csv", b"x", "text/csv")},
+        headers={"Sec-Fetch-Site": "cross-site", "Origin": "https://evil.example"},
+    )
+    assert r.status_code == 403
+
+
+def test_api_upload_reports_rows_and_writes_nothing_on_error(db, client):
+    _seed(db)
+    bad = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,-3\nUpland,W-2,2017-02-30,100\n"
+    r = client.post("/api/uploads/surveys", files={"file": ("bad.csv", bad, "text/csv")})
+    assert r.status_code == 422
+    body = r.json()
+    assert body["status"] == "rejected"
+    assert [(p["row"], p["column"]) for p in body["report"]["problems"]] == [
+        (2, "pressure_psia"),
+        (3, "survey_date"),
+    ]
+
+
+def test_api_json_rows_upload(db, client):
+    _seed(db)
+    rows = {"rows": [{"field": "Upland", "well": "W-2", "survey_date": "2017-01-15", "pressure_psia": 1500}]}
+    r = client.post("/api/uploads/surveys/rows", json=rows)
+    assert r.status_code == 200, r.text
+    assert r.json()["status"] == "committed"
+    r = client.post("/api/uploads/surveys/rows", json=rows)
+    assert r.json()["status"] == "unchanged"
+
+
+def test_openapi_schema_lists_api(client):
+    spec = client.get("/openapi.json").json()
+    assert "/api/fields/{field_id}" in spec["paths"] and "/api/uploads/{kind}" in spec["paths"]
