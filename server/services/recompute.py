@@ -6,10 +6,11 @@ import numpy as np
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
-from ..db.models import Estimate, Field, PressureSurvey, ProductionMonth, Well
+from ..db.models import Estimate, Field, FieldAnalysisSettings, PressureSurvey, ProductionMonth, Well
 from ..engine import ENGINE_VERSION
-from ..engine.analysis import FieldAnalysis, FieldInputs, analyse_field
+from ..engine.analysis import FieldAnalysis, analyse_field
 from ..engine.errors import EngineError
+from ..engine.inputs import AnalysisChoices, FieldInputs, LabTable
 from ..engine.pvt import GasFluid
 from .serialize import fingerprint, to_jsonable
 from .timebase import days_from_date, month_end_exclusive
@@ -20,41 +21,96 @@ class FieldNotReadyError(Exception):
 
 
 def load_field_inputs(session: Session, field: Field) -> FieldInputs:
-    """Gather a field's surveys, production and choices into engine inputs."""
+    """Gather a field's surveys, production, fluid and analysis choices into engine inputs."""
     if field.fluid is None:
         raise FieldNotReadyError(f"field {field.name!r} has no fluid description")
-    surveys = (
-        session.execute(
-            select(PressureSurvey)
-            .join(Well)
-            .where(Well.field_id == field.id)
-            .order_by(PressureSurvey.survey_date, Well.name)
-        )
-        .scalars()
-        .all()
-    )
-    monthly = session.execute(
-        select(ProductionMonth.month, func.sum(ProductionMonth.gas_mscf))
+    surveys = session.execute(
+        select(PressureSurvey, Well)
         .join(Well)
         .where(Well.field_id == field.id)
-        .group_by(ProductionMonth.month)
+        .order_by(PressureSurvey.survey_date, Well.name)
+    ).all()
+    monthly = session.execute(
+        select(
+            ProductionMonth.month,
+            Well.compartment,
+            func.sum(ProductionMonth.gas_mscf),
+            func.sum(ProductionMonth.condensate_stb),
+            func.sum(ProductionMonth.water_stb),
+        )
+        .join(Well)
+        .where(Well.field_id == field.id)
+        .group_by(ProductionMonth.month, Well.compartment)
         .order_by(ProductionMonth.month)
     ).all()
+    months = sorted({m for m, *_ in monthly})
+    index = {m: i for i, m in enumerate(months)}
+    gas = np.zeros(len(months))
+    cond = np.zeros(len(months))
+    water = np.zeros(len(months))
+    by_comp: dict[str, np.ndarray] = {}
+    for m, comp, g, c, w in monthly:
+        i = index[m]
+        gas[i] += float(g)
+        cond[i] += float(c)
+        water[i] += float(w)
+        if comp is not None:
+            by_comp.setdefault(comp, np.zeros(len(months)))[i] += float(g)
     fl = field.fluid
-    settings = field.settings
+    lab = None
+    if fl.lab_points:
+        zs = [p.z_factor for p in fl.lab_points]
+        bgs = [p.bg_rcf_per_scf for p in fl.lab_points]
+        lab = LabTable(
+            pressure_psia=np.array([p.pressure_psia for p in fl.lab_points]),
+            z_factor=np.array(zs, float) if all(z is not None for z in zs) else None,
+            bg_rcf_per_scf=np.array(bgs, float) if all(b is not None for b in bgs) else None,
+        )
     return FieldInputs(
         fluid=GasFluid(fl.gas_gravity, fl.y_co2_frac, fl.y_h2s_frac, fl.y_n2_frac),
         reservoir_temperature_degF=field.reservoir_temperature_degF,
         initial_pressure_psia=field.initial_pressure_psia,
         abandonment_pressure_psia=field.abandonment_pressure_psia,
-        survey_t_days=np.array([days_from_date(s.survey_date) for s in surveys]),
-        survey_p_psia=np.array([s.pressure_psia for s in surveys]),
-        survey_included=np.array([not s.excluded for s in surveys], dtype=bool),
-        production_end_t_days=np.array([days_from_date(month_end_exclusive(m)) for m, _ in monthly]),
-        production_gas_mscf=np.array([float(v) for _, v in monthly]),
-        survey_labels=tuple(s.well.name for s in surveys),
-        z_method=settings.z_method if settings else "dak",
+        datum_depth_ft=field.datum_depth_ft,
+        survey_t_days=np.array([days_from_date(s.survey_date) for s, _ in surveys]),
+        survey_p_psia=np.array([s.pressure_psia for s, _ in surveys]),
+        survey_gauge_depth_ft=np.array([s.gauge_depth_ft for s, _ in surveys]),
+        survey_included=np.array([not s.excluded for s, _ in surveys], dtype=bool),
+        production_end_t_days=np.array([days_from_date(month_end_exclusive(m)) for m in months]),
+        production_gas_mscf=gas,
+        production_condensate_stb=cond,
+        production_water_stb=water,
+        survey_well=tuple(w.name for _, w in surveys),
+        survey_compartment=tuple(w.compartment for _, w in surveys),
+        survey_quality=tuple(s.quality for s, _ in surveys),
+        survey_kind=tuple(s.kind for s, _ in surveys),
+        survey_exclusion_reason=tuple(s.exclusion_reason for s, _ in surveys),
+        survey_id=tuple(s.id for s, _ in surveys),
+        production_by_compartment=tuple(sorted(by_comp.items())),
+        condensate_api=fl.condensate_api,
+        lab_table=lab,
+        choices=choices_from_settings(field.settings),
     )
+
+
+def choices_from_settings(settings: FieldAnalysisSettings | None) -> AnalysisChoices:
+    """The engine's analysis choices from a field's stored settings (defaults if none)."""
+    if settings is None:
+        return AnalysisChoices()
+    return AnalysisChoices(
+        z_method=settings.z_method,
+        use_lab_table=settings.use_lab_table,
+        datum_correction=settings.datum_correction,
+        condensate_correction=settings.condensate_correction,
+        overpressure_mode=settings.overpressure_mode,
+        effective_compressibility_per_psi=settings.effective_compressibility_per_psi,
+        aquifer_model=settings.aquifer_model,
+        anchor_initial=settings.anchor_initial,
+        **{k: v for k, v in (settings.options or {}).items() if k in _OPTION_KEYS},
+    )
+
+
+_OPTION_KEYS = {"pseudo_critical_method", "weighting", "confidence_level", "bootstrap_samples"}
 
 
 def current_estimate(session: Session, field_id: int) -> Estimate | None:
@@ -94,14 +150,14 @@ def _estimate_from_result(field_id: int, result: FieldAnalysis, fp: str) -> Esti
         method=result.method,
         status=result.status,
         message=result.message,
-        giip_low_bscf=None,
-        giip_best_bscf=result.giip_bscf,
-        giip_high_bscf=None,
+        giip_low_bscf=result.giip_low_bscf,
+        giip_best_bscf=result.giip_best_bscf,
+        giip_high_bscf=result.giip_high_bscf,
         eur_bscf=result.eur_bscf,
         recovery_factor_frac=result.recovery_factor_frac,
         cumulative_gas_bscf=result.cumulative_gas_bscf,
         remaining_bscf=result.remaining_bscf,
-        flags=[],
+        flags=to_jsonable(list(result.flags)),
         detail=to_jsonable(result),
         inputs_fingerprint=fp,
         engine_version=result.engine_version,

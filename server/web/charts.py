@@ -18,11 +18,13 @@ def _axis(title: str) -> dict:
 def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
     """p/z against cumulative gas: surveys by well, excluded points, the fitted line
     extended to p/z = 0, the abandonment point and the volumetric GIIP range."""
-    points = detail.get("points") or []
+    prepared = detail.get("prepared") or {}
+    pz = detail.get("pz") or {}
+    points = prepared.get("points") or []
     by_well: dict[str, list[dict]] = defaultdict(list)
     excluded = []
     for p in points:
-        (by_well[p["label"] or "survey"] if p["included"] else excluded).append(p)
+        (by_well[p["well"] or "survey"] if p["included"] else excluded).append(p)
     traces = []
     for i, (well, pts) in enumerate(sorted(by_well.items())):
         traces.append(
@@ -53,8 +55,8 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
                 "hovertemplate": "%{x:.2f} Bscf, p/z %{y:.0f} psia: %{text}<extra></extra>",
             }
         )
-    giip = detail.get("giip_bscf")
-    intercept = detail.get("pz_intercept_psia")
+    giip = pz.get("giip_bscf")
+    intercept = pz.get("intercept_psia")
     if giip and intercept:
         traces.append(
             {
@@ -67,8 +69,8 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
                 "hovertemplate": "%{x:.1f} Bscf, %{y:.0f} psia<extra>fit</extra>",
             }
         )
-        eur = detail.get("eur_bscf")
-        pz_a = detail.get("abandonment_pz_psia")
+        eur = pz.get("eur_bscf")
+        pz_a = prepared.get("abandonment_pz_psia")
         if eur is not None and pz_a is not None:
             traces.append(
                 {

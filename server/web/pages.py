@@ -56,7 +56,24 @@ def field_page(request: Request, field_id: int, session: SessionDep):
 
 @router.get("/upload", response_class=HTMLResponse, name="upload_page")
 def upload_page(request: Request):
-    return render(request, "upload.html", {"kinds": _kinds(), "title": "Upload"})
+    return render(request, "upload.html", _upload_context())
+
+
+def _upload_context(**values) -> dict:
+    """The upload page's full context: every key the template reads, with defaults."""
+    base = {
+        "kinds": _kinds(),
+        "title": "Upload",
+        "plan": None,
+        "report": None,
+        "preview": None,
+        "kind": "surveys",
+        "replace": False,
+        "filename": "",
+        "staged": "",
+        "committed": None,
+    }
+    return {**base, **values}
 
 
 def _kinds():

@@ -7,6 +7,7 @@ import json
 import math
 
 from fastapi.templating import Jinja2Templates
+from jinja2 import Environment, FileSystemLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup
 
 from ..settings import PROJECT_ROOT
@@ -41,7 +42,12 @@ def chart_json(figure: dict) -> Markup:
 
 
 def make_templates() -> Jinja2Templates:
-    templates = Jinja2Templates(directory=str(PROJECT_ROOT / "templates"))
+    env = Environment(
+        loader=FileSystemLoader(str(PROJECT_ROOT / "templates")),
+        autoescape=select_autoescape(default=True),
+        undefined=StrictUndefined,  # a missing value in a template is a bug, not a blank
+    )
+    templates = Jinja2Templates(env=env)
     templates.env.filters.update(fmt=fmt, pct=pct, chart_json=chart_json, date_from_days=date_from_days)
     templates.env.globals["DASH"] = DASH
     return templates

@@ -51,7 +51,7 @@ def test_field_page_embeds_chart_data_without_inline_script(db, client):
     assert r.headers["x-content-type-options"] == "nosniff"
     twin = client.get(f"/api/fields/{fid}").json()
     assert twin["summary"]["name"] == "Upland"
-    assert len(twin["detail"]["points"]) > 5
+    assert len(twin["detail"]["prepared"]["points"]) > 5
 
 
 def test_unknown_field_is_a_clean_404(db, client):
