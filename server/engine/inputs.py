@@ -41,6 +41,10 @@ class AnalysisChoices:
     use_lab_table: bool = True
     datum_correction: bool = True
     condensate_correction: bool = True
+    # Produced water is normally free formation or aquifer water, a liquid withdrawal;
+    # only an engineer who knows it is condensed vapour (fresh water, low water-gas
+    # ratio) should count it as a gas equivalent. See engine/prepare.py.
+    water_vapour_correction: bool = False
     overpressure_mode: str = "off"
     effective_compressibility_per_psi: float | None = None
     anchor_initial: bool = False
