@@ -197,7 +197,7 @@ def _check_inputs(inputs: FieldInputs) -> None:
     for i in range(n):
         if not (np.isfinite(p[i]) and p[i] > 0):
             raise EngineError(
-                f"{_survey_label(inputs, i)}: pressure {p[i]!r} is not a positive absolute pressure"
+                f"{_survey_label(inputs, i)}: pressure {float(p[i])} is not a positive absolute pressure"
             )
         if not np.isfinite(d[i]):
             raise EngineError(f"{_survey_label(inputs, i)}: gauge depth is missing")
@@ -213,7 +213,7 @@ def _check_inputs(inputs: FieldInputs) -> None:
             raise EngineError(f"{name} has {v.size} entries for {m} production periods")
         bad = np.flatnonzero(~(v >= 0))
         if bad.size:
-            raise EngineError(f"{name}: period {bad[0] + 1} has {v[bad[0]]!r}, not a volume >= 0")
+            raise EngineError(f"{name}: period {bad[0] + 1} has {float(v[bad[0]])}, not a volume >= 0")
     if not 0 < inputs.abandonment_pressure_psia < inputs.initial_pressure_psia:
         raise EngineError("abandonment pressure must be positive and below the initial pressure")
 
