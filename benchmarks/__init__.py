@@ -1,0 +1,1 @@
+"""Rerunnable performance scripts (see README.md)."""
