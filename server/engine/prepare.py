@@ -227,7 +227,11 @@ def _wet_gas(inputs: FieldInputs, sep, fluid: GasFluid, notes: list[str]):
         inputs.production_condensate_stb if inputs.production_condensate_stb is not None else []
     )
     n_cond = float(cond.sum()) if cond.size else 0.0
-    if n_cond > 0 and sep_mmscf > 0:
+    if n_cond > 0 and not sep_mmscf > 0:
+        raise EngineError(
+            f"{n_cond:,.0f} stb of condensate reported with no separator gas: check the production"
+        )
+    if n_cond > 0:
         yield_stb_per_mmscf = n_cond / sep_mmscf
         api = inputs.condensate_api
         if not ch.condensate_correction:

@@ -339,6 +339,13 @@ def test_bad_inputs_name_the_row(change, message):
         prepare(_simple(**change))
 
 
+def test_condensate_without_gas_is_refused():
+    with pytest.raises(EngineError, match="condensate reported with no separator gas"):
+        prepare(
+            _simple(gas_mscf=np.zeros(14), production_condensate_stb=np.full(14, 5.0), condensate_api=50.0)
+        )
+
+
 def test_no_surveys_and_no_production():
     prep = prepare(_simple(t_surv=[], p_surv=[], gas_mscf=np.zeros(0)))
     assert prep.points == () and prep.field_averages == () and prep.cumulative_gas_bscf == 0.0
