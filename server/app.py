@@ -6,19 +6,27 @@ from contextlib import asynccontextmanager
 from pathlib import Path
 
 import plotly
-from fastapi import FastAPI
+from fastapi import FastAPI, Request
 from fastapi.responses import FileResponse
 from fastapi.staticfiles import StaticFiles
 
+from .db.base import utcnow
 from .db.session import Database
 from .engine import ENGINE_VERSION
 from .settings import PROJECT_ROOT, Settings
-from .web import api, pages
+from .web import account_pages, admin_pages, api, api_accounts, pages
+from .web.auth import Public, Reader, document_auth_errors
 from .web.errors import install_error_handlers
 from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
 from .web.templating import make_templates
 
 PLOTLY_JS = Path(plotly.__file__).parent / "package_data" / "plotly.min.js"
+
+
+def _auth_context(request: Request) -> dict:
+    """Every template knows who is logged in and the form token of their session."""
+    principal = getattr(request.state, "principal", None)
+    return {"current_user": principal, "csrf_token": principal.csrf_token if principal else ""}
 
 
 def create_app(settings: Settings | None = None, database: Database | None = None) -> FastAPI:
@@ -41,19 +49,28 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app = FastAPI(
         title="Tankbook",
         version=ENGINE_VERSION,
-        description="Gas material balance and reserves for a portfolio of gas fields.",
+        description=(
+            "Gas material balance and reserves for a portfolio of gas fields. "
+            "Authenticate with `Authorization: Bearer <token>` (tokens are made on the account page)."
+        ),
         lifespan=lifespan,
         max_body_size=settings.max_upload_bytes,
         telemetry={"tracing": False, "metrics": False, "logs": False, "operation_spans": False},
+        # The schema is served below behind a login; the interactive docs load scripts from a CDN.
+        openapi_url=None,
+        docs_url=None,
+        redoc_url=None,
     )
     app.state.settings = settings
     app.state.db = database
+    app.state.clock = utcnow
     app.state.templates = make_templates()
+    app.state.templates.context_processors.append(_auth_context)
     install_error_handlers(app)
     app.add_middleware(CrossSiteGuardMiddleware)
     app.add_middleware(SecurityHeadersMiddleware, hsts=settings.behind_tls)
 
-    @app.get("/vendor/plotly.min.js", include_in_schema=False)
+    @app.get("/vendor/plotly.min.js", include_in_schema=False, dependencies=[Public])
     def plotly_js():
         return FileResponse(
             PLOTLY_JS,
@@ -61,11 +78,19 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
             headers={"Cache-Control": "public, max-age=31536000, immutable"},
         )
 
-    @app.get("/favicon.ico", include_in_schema=False)
+    @app.get("/favicon.ico", include_in_schema=False, dependencies=[Public])
     def favicon():
         return FileResponse(PROJECT_ROOT / "static" / "favicon.svg", media_type="image/svg+xml")
 
+    @app.get("/openapi.json", include_in_schema=False)
+    def openapi_schema(_: Reader):
+        return app.openapi()
+
     app.mount("/static", StaticFiles(directory=PROJECT_ROOT / "static"), name="static")
     app.include_router(api.router)
+    app.include_router(api_accounts.router)
+    app.include_router(account_pages.router)
+    app.include_router(admin_pages.router)
     app.include_router(pages.router)
+    document_auth_errors(app)
     return app

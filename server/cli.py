@@ -1,4 +1,4 @@
-"""The ``tankbook`` command: serve, migrate, demo, recompute."""
+"""The ``tankbook`` command: serve, migrate, demo, recompute, and accounts."""
 
 from __future__ import annotations
 
@@ -34,17 +34,116 @@ def cmd_demo(args) -> int:
 
     db = Database(_settings().database_url)
     with db.session() as session:
-        if demo_is_loaded(session):
-            if args.if_empty:
-                print("the database already holds fields; demo portfolio not loaded")
-                return 0
+        loaded = demo_is_loaded(session)
+        if not loaded:
+            ids = load_demo(session)
+    if loaded:
+        if not args.if_empty:
             print("the database already holds fields; refusing to add the demo portfolio", file=sys.stderr)
             return 1
-        ids = load_demo(session)
+        print("the database already holds fields; demo portfolio not loaded")
+        _first_admin(db)
+        return 0
     ran = jobs.drain(db)
     print(f"loaded the demo portfolio: {len(ids)} fields, {ran} estimates computed")
+    _first_admin(db)
     db.dispose()
     return 0
+
+
+def _first_admin(db) -> None:
+    """On a database without users, make ``admin`` with a one-time password and print it once."""
+    from .db.base import utcnow
+    from .services.accounts import FIRST_ADMIN, ensure_first_admin
+
+    with db.session() as session:
+        password = ensure_first_admin(session, now=utcnow())
+    if password:
+        print(
+            f"\nCreated the administrator {FIRST_ADMIN!r} with this one-time password:\n\n    {password}\n\n"
+            "Log in with it once and choose your own password; it is not shown again.\n"
+            "(Lost it? `tankbook set-password admin` sets a new one.)\n"
+        )
+
+
+def _read_password(args, username: str) -> str:
+    """The new password from stdin (``--password-stdin``) or typed twice at a prompt; never an argument."""
+    import getpass
+
+    if args.password_stdin:
+        password = sys.stdin.readline().rstrip("\r\n")
+    else:
+        password = getpass.getpass(f"New password for {username}: ")
+        if getpass.getpass("Again: ") != password:
+            raise SystemExit("the two passwords differ; nothing changed")
+    return password
+
+
+def _account_command(args, *, role: str | None) -> int:
+    from .db.base import utcnow
+    from .db.models import Asset, User
+    from .db.session import Database
+    from .services import accounts
+    from .services.audit import Actor
+    from .services.passwords import PasswordPolicyError
+
+    settings = _settings()
+    db = Database(settings.database_url)
+    actor = Actor(None, "command line")
+    try:
+        username = accounts.normalize_username(args.username)
+        password = _read_password(args, username)
+        with db.session() as session:
+            if role is None:  # set-password
+                user = session.execute(select(User).where(User.username == username)).scalar_one_or_none()
+                if user is None:
+                    raise accounts.AccountError(f"no user {username!r}")
+                accounts.set_password(
+                    session, actor, user, password, now=utcnow(), min_length=settings.password_min_length
+                )
+                if not user.is_active:
+                    print("note: the account is disabled; an administrator can enable it")
+                user.failed_logins = 0
+                print(f"password of {username} set; their sessions were ended")
+                return 0
+            names = args.asset or []
+            asset_ids = list(session.execute(select(Asset.id).where(Asset.name.in_(names))).scalars())
+            if len(asset_ids) != len(set(names)):
+                raise accounts.AccountError(f"unknown asset among {', '.join(names)}")
+            accounts.create_user(
+                session,
+                actor,
+                username=username,
+                role=role,
+                password=password,
+                display_name=args.display_name or "",
+                all_assets=not names,
+                asset_ids=asset_ids,
+                min_length=settings.password_min_length,
+                now=utcnow(),
+            )
+        print(
+            f"created {role} {username}" + (f" for assets {', '.join(names)}" if names else " (all assets)")
+        )
+        return 0
+    except (accounts.AccountError, PasswordPolicyError, ValueError) as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 1
+    finally:
+        db.dispose()
+
+
+def cmd_create_admin(args) -> int:
+    args.asset = None
+    return _account_command(args, role="admin")
+
+
+def cmd_create_user(args) -> int:
+    return _account_command(args, role=args.role)
+
+
+def cmd_set_password(args) -> int:
+    return _account_command(args, role=None)
 
 
 def cmd_recompute(args) -> int:
@@ -75,7 +174,14 @@ def cmd_serve(args) -> int:
     settings = Settings(**overrides)  # re-validated: a public host needs a real secret key
     host, port = settings.host, settings.port
     print(f"Tankbook at http://{host}:{port}/")
-    uvicorn.run(create_app(settings), host=host, port=port, log_level="info")
+    uvicorn.run(
+        create_app(settings),
+        host=host,
+        port=port,
+        log_level="info",
+        proxy_headers=True,  # trust X-Forwarded-For/-Proto only from forwarded_allow_ips
+        forwarded_allow_ips=settings.forwarded_allow_ips,
+    )
     return 0
 
 
@@ -94,6 +200,20 @@ def build_parser() -> argparse.ArgumentParser:
     r = sub.add_parser("recompute", help="recompute estimates (all fields, or those named)")
     r.add_argument("--field", action="append", help="field name (repeatable)")
     r.set_defaults(func=cmd_recompute)
+    for name, func, text in (
+        ("create-admin", cmd_create_admin, "create an administrator (password from a prompt or stdin)"),
+        ("create-user", cmd_create_user, "create a user with a role (password from a prompt or stdin)"),
+        ("set-password", cmd_set_password, "set a user's password and end their sessions"),
+    ):
+        a = sub.add_parser(name, help=text)
+        a.add_argument("username")
+        a.add_argument("--password-stdin", action="store_true", help="read the password from standard input")
+        if name != "set-password":
+            a.add_argument("--display-name", help="full name shown in the app")
+        if name == "create-user":
+            a.add_argument("--role", required=True, choices=["viewer", "engineer", "approver", "admin"])
+            a.add_argument("--asset", action="append", help="limit to this asset (repeatable); default: all")
+        a.set_defaults(func=func)
     return parser
 
 

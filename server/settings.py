@@ -36,7 +36,21 @@ class Settings(BaseSettings):
     run_jobs_inline: bool = Field(
         default=True, description="Run recompute jobs right after an upload in the request."
     )
-    behind_tls: bool = False
+    behind_tls: bool = Field(
+        default=False,
+        description="Served over HTTPS by a reverse proxy: Secure cookies and HSTS.",
+    )
+    forwarded_allow_ips: str = Field(
+        default="127.0.0.1",
+        description="Proxies trusted to set X-Forwarded-For/-Proto (comma-separated, or '*').",
+    )
+    session_idle_minutes: int = Field(default=120, gt=0, le=7 * 24 * 60)
+    session_absolute_hours: int = Field(default=12, gt=0, le=30 * 24)
+    password_min_length: int = Field(default=12, ge=8, le=128)
+    login_free_failures_per_account: int = Field(default=5, ge=1)
+    login_free_failures_per_address: int = Field(default=20, ge=1)
+    login_throttle_window_minutes: int = Field(default=15, gt=0)
+    login_max_delay_seconds: int = Field(default=900, gt=0)
 
     @model_validator(mode="after")
     def _refuse_insecure(self) -> Settings:

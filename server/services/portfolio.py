@@ -133,11 +133,13 @@ def _last_surveys(session: Session, field_ids) -> dict[int, dt.date]:
     return {fid: d for fid, d in rows}
 
 
-def portfolio_rows(session: Session) -> list[PortfolioRow]:
-    """One row per field with its current estimate and latest volumetric range."""
-    fields = (
-        session.execute(select(Field).options(selectinload(Field.asset)).order_by(Field.name)).scalars().all()
-    )
+def portfolio_rows(session: Session, asset_ids: frozenset[int] | None = None) -> list[PortfolioRow]:
+    """One row per field with its current estimate and latest volumetric range
+    (only fields of ``asset_ids`` when given: a user limited to some assets)."""
+    stmt = select(Field).options(selectinload(Field.asset)).order_by(Field.name)
+    if asset_ids is not None:
+        stmt = stmt.where(Field.asset_id.in_(sorted(asset_ids)))
+    fields = session.execute(stmt).scalars().all()
     ids = [f.id for f in fields]
     est = latest_estimates(session, ids)
     vol = _latest_volumetrics(session, ids)

@@ -6,7 +6,7 @@ import csv
 import io
 from typing import Annotated
 
-from fastapi import APIRouter, File, HTTPException, Query, Request, UploadFile
+from fastapi import APIRouter, File, HTTPException, Query, UploadFile
 from fastapi.responses import JSONResponse
 
 from ..engine import ENGINE_VERSION
@@ -15,9 +15,12 @@ from ..services.ingest.kinds import UPLOAD_KINDS, file_kind
 from ..services.ingest.service import commit_upload, validate_upload
 from ..services.portfolio import field_detail, portfolio_rows
 from ..services.recompute import current_estimate
+from .auth import Principal, Public, Reader, Uploader
 from .deps import DatabaseDep, SessionDep, SettingsDep
 from .schemas import (
+    ErrorRead,
     EstimateRead,
+    FieldId,
     FieldRead,
     HealthRead,
     PortfolioRowRead,
@@ -26,16 +29,17 @@ from .schemas import (
 )
 
 router = APIRouter(prefix="/api")
+NOT_FOUND = {404: {"model": ErrorRead, "description": "no such field (or not in your assets)"}}
 
 
-@router.get("/health", response_model=HealthRead, tags=["meta"])
+@router.get("/health", response_model=HealthRead, tags=["meta"], dependencies=[Public])
 def health():
     return {"status": "ok", "engine_version": ENGINE_VERSION}
 
 
 @router.get("/portfolio", response_model=list[PortfolioRowRead], tags=["portfolio"])
-def portfolio(session: SessionDep):
-    return [_row(r) for r in portfolio_rows(session)]
+def portfolio(session: SessionDep, user: Reader):
+    return [_row(r) for r in portfolio_rows(session, user.asset_ids)]
 
 
 def _row(r) -> dict:
@@ -44,8 +48,8 @@ def _row(r) -> dict:
     return d
 
 
-@router.get("/fields/{field_id}", response_model=FieldRead, tags=["fields"])
-def field(field_id: int, session: SessionDep):
+@router.get("/fields/{field_id}", response_model=FieldRead, tags=["fields"], responses=NOT_FOUND)
+def field(field_id: FieldId, session: SessionDep, user: Reader):
     detail = field_detail(session, field_id)
     if detail is None:
         raise HTTPException(status_code=404, detail="no such field")
@@ -54,15 +58,17 @@ def field(field_id: int, session: SessionDep):
     return out
 
 
-@router.get("/fields/{field_id}/estimate", response_model=EstimateRead, tags=["fields"])
-def field_estimate(field_id: int, session: SessionDep):
+@router.get("/fields/{field_id}/estimate", response_model=EstimateRead, tags=["fields"], responses=NOT_FOUND)
+def field_estimate(field_id: FieldId, session: SessionDep, user: Reader):
     est = current_estimate(session, field_id)
     if est is None:
         raise HTTPException(status_code=404, detail="no estimate for this field")
     return est
 
 
-def _run_upload(session, db, settings, kind, data, filename, dry_run, replace, accept_warnings):
+def _run_upload(
+    session, db, settings, user: Principal, kind, data, filename, dry_run, replace, accept_warnings
+):
     if kind not in UPLOAD_KINDS:
         raise HTTPException(status_code=404, detail=f"unknown upload kind {kind!r}")
     plan = validate_upload(
@@ -72,6 +78,7 @@ def _run_upload(session, db, settings, kind, data, filename, dry_run, replace, a
         filename=filename,
         replace=replace,
         atmosphere_psia=settings.atmosphere_psia,
+        asset_ids=user.asset_ids,
     )
     body = {"report": plan.report.as_dict(), "preview": plan.preview(), "upload_id": None}
     if not plan.report.ok:
@@ -81,7 +88,9 @@ def _run_upload(session, db, settings, kind, data, filename, dry_run, replace, a
         return JSONResponse({**body, "status": status}, status_code=200 if dry_run else 409)
     if dry_run:
         return {**body, "status": "dry_run"}
-    upload = commit_upload(session, plan, accept_warnings=accept_warnings, actor="api")
+    upload = commit_upload(
+        session, plan, accept_warnings=accept_warnings, user_id=user.user_id, actor=user.username
+    )
     session.commit()
     if upload is not None and settings.run_jobs_inline:
         jobs.drain(db)
@@ -100,6 +109,7 @@ def _run_upload(session, db, settings, kind, data, filename, dry_run, replace, a
 )
 async def upload_file(
     kind: str,
+    user: Uploader,
     session: SessionDep,
     db: DatabaseDep,
     settings: SettingsDep,
@@ -111,7 +121,7 @@ async def upload_file(
     """Upload a CSV file (multipart). Every row is checked; any error rejects the file."""
     data = await file.read()
     return _run_upload(
-        session, db, settings, kind, data, file.filename or "", dry_run, replace, accept_warnings
+        session, db, settings, user, kind, data, file.filename or "", dry_run, replace, accept_warnings
     )
 
 
@@ -124,7 +134,7 @@ async def upload_file(
 def upload_rows(
     kind: str,
     body: UploadRowsBody,
-    request: Request,
+    user: Uploader,
     session: SessionDep,
     db: DatabaseDep,
     settings: SettingsDep,
@@ -144,5 +154,14 @@ def upload_rows(
     for r in body.rows:
         writer.writerow(["" if r.get(c) is None else r.get(c) for c in used + extra])
     return _run_upload(
-        session, db, settings, kind, buf.getvalue().encode(), body.filename, dry_run, replace, accept_warnings
+        session,
+        db,
+        settings,
+        user,
+        kind,
+        buf.getvalue().encode(),
+        body.filename,
+        dry_run,
+        replace,
+        accept_warnings,
     )

@@ -1,16 +1,18 @@
-"""Dependency aliases that make route signatures read like prose."""
+"""Dependency aliases that make route signatures read like prose.
+
+Permission aliases (``Reader``, ``Uploader``, ...) and ``Require``/``Public`` live in ``auth.py``.
+"""
 
 from __future__ import annotations
 
 from collections.abc import Iterator
 from typing import Annotated
 
-from fastapi import Depends, Form, HTTPException, Request
+from fastapi import Depends, Request
 from sqlalchemy.orm import Session
 
 from ..db.session import Database
 from ..settings import Settings
-from .security import CSRF_COOKIE
 
 
 def get_settings(request: Request) -> Settings:
@@ -27,14 +29,6 @@ def get_session(request: Request) -> Iterator[Session]:
         yield session
 
 
-def check_form_token(request: Request, csrf_token: Annotated[str, Form()] = "") -> None:
-    """Double-submit check: the form's token must match the cookie set with the form."""
-    cookie = request.cookies.get(CSRF_COOKIE, "")
-    if not cookie or not csrf_token or cookie != csrf_token:
-        raise HTTPException(status_code=403, detail="the form has expired or was not sent by Tankbook")
-
-
 SettingsDep = Annotated[Settings, Depends(get_settings)]
 DatabaseDep = Annotated[Database, Depends(get_database)]
 SessionDep = Annotated[Session, Depends(get_session)]
-FormTokenChecked = Depends(check_form_token)

@@ -11,51 +11,50 @@ from fastapi import APIRouter, File, Form, HTTPException, Request, UploadFile
 from fastapi.responses import HTMLResponse
 
 from ..services import jobs
+from ..services.audit import field_events
 from ..services.ingest.kinds import UPLOAD_KINDS, file_kind
 from ..services.ingest.service import commit_upload, validate_upload
 from ..services.portfolio import field_detail, portfolio_rows
+from .auth import Reader, Uploader
 from .charts import pz_figure
-from .deps import DatabaseDep, FormTokenChecked, SessionDep, SettingsDep
-from .security import CSRF_COOKIE, new_form_token
+from .deps import DatabaseDep, SessionDep, SettingsDep
 
-router = APIRouter()
+router = APIRouter(include_in_schema=False)
 
 
 def render(request: Request, template: str, context: dict, status_code: int = 200) -> HTMLResponse:
-    """Render a page; every page gets a fresh form token (also set as a cookie)."""
-    token = request.cookies.get(CSRF_COOKIE) or new_form_token()
+    """Render a page (the logged-in user and the session's form token come from ``app.py``)."""
     response = request.app.state.templates.TemplateResponse(
-        request, template, {**context, "csrf_token": token}, status_code=status_code
-    )
-    response.set_cookie(
-        CSRF_COOKIE,
-        token,
-        httponly=True,
-        samesite="strict",
-        secure=request.app.state.settings.behind_tls,
+        request, template, context, status_code=status_code
     )
     response.headers["Cache-Control"] = "no-store"
     return response
 
 
 @router.get("/", response_class=HTMLResponse, name="portfolio")
-def portfolio_page(request: Request, session: SessionDep):
-    rows = portfolio_rows(session)
+def portfolio_page(request: Request, session: SessionDep, user: Reader):
+    rows = portfolio_rows(session, user.asset_ids)
     return render(request, "portfolio.html", {"rows": rows, "title": "Portfolio"})
 
 
 @router.get("/fields/{field_id}", response_class=HTMLResponse, name="field_page")
-def field_page(request: Request, field_id: int, session: SessionDep):
+def field_page(request: Request, field_id: int, session: SessionDep, user: Reader):
     detail = field_detail(session, field_id)
     if detail is None:
         raise HTTPException(status_code=404, detail="no such field")
     vol = dataclasses.asdict(detail.summary.volumetric) if detail.summary.volumetric else None
     figure = pz_figure(detail.detail, vol)
-    return render(request, "field.html", {"f": detail, "pz_figure": figure, "title": detail.summary.name})
+    context = {
+        "f": detail,
+        "pz_figure": figure,
+        "title": detail.summary.name,
+        "audit_events": field_events(session, field_id),
+    }
+    return render(request, "field.html", context)
 
 
 @router.get("/upload", response_class=HTMLResponse, name="upload_page")
-def upload_page(request: Request):
+def upload_page(request: Request, user: Uploader):
     return render(request, "upload.html", _upload_context())
 
 
@@ -80,9 +79,10 @@ def _kinds():
     return [file_kind(k) for k in UPLOAD_KINDS]
 
 
-@router.post("/upload", response_class=HTMLResponse, dependencies=[FormTokenChecked])
+@router.post("/upload", response_class=HTMLResponse)
 async def upload_submit(
     request: Request,
+    user: Uploader,
     session: SessionDep,
     db: DatabaseDep,
     settings: SettingsDep,
@@ -113,6 +113,7 @@ async def upload_submit(
         filename=filename,
         replace=replace,
         atmosphere_psia=settings.atmosphere_psia,
+        asset_ids=user.asset_ids,
     )
     context = {
         "kinds": _kinds(),
@@ -127,7 +128,9 @@ async def upload_submit(
         "committed": None,
     }
     if action == "commit" and plan.report.ok and (accept_warnings or not plan.report.warnings):
-        upload = commit_upload(session, plan, accept_warnings=accept_warnings, actor="web")
+        upload = commit_upload(
+            session, plan, accept_warnings=accept_warnings, user_id=user.user_id, actor=user.username
+        )
         session.commit()
         if settings.run_jobs_inline:
             jobs.drain(db)

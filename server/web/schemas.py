@@ -3,9 +3,13 @@
 from __future__ import annotations
 
 import datetime as dt
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
+from fastapi import Path
 from pydantic import BaseModel, ConfigDict, Field
+
+# Ids are 32-bit integers on PostgreSQL: larger values are a 422, not a database error.
+FieldId = Annotated[int, Path(ge=1, le=2**31 - 1, description="a field's id")]
 
 
 class Schema(BaseModel):
@@ -111,3 +115,9 @@ class UploadRowsBody(BaseModel):
 class HealthRead(BaseModel):
     status: Literal["ok"]
     engine_version: str
+
+
+class ErrorRead(BaseModel):
+    """Every error other than a validation error: a plain sentence."""
+
+    detail: str

@@ -1,5 +1,8 @@
 """A live Tankbook (uvicorn in a thread, demo portfolio in a fresh SQLite file) and
-Debian's Chromium driven by Playwright. Never downloads a browser."""
+Debian's Chromium driven by Playwright. Never downloads a browser.
+
+``page`` is logged in as an engineer through the real login page; ``anon_page`` is not logged in.
+``BROWSER_USERS`` holds one account per role (password ``TEST_PASSWORD``)."""
 
 from __future__ import annotations
 
@@ -15,9 +18,14 @@ import uvicorn
 from server.app import create_app
 from server.db.migrate import upgrade
 from server.db.session import Database
-from server.services import jobs
+from server.db.base import utcnow
+from server.services import accounts, jobs
+from server.services.audit import Actor
 from server.services.demo import load_demo
 from server.settings import Settings
+from tests.web.conftest import TEST_PASSWORD
+
+BROWSER_USERS = {role: f"browser-{role}" for role in ("viewer", "engineer", "approver", "admin")}
 
 CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
 SCREENSHOTS = Path(__file__).resolve().parents[2] / "var" / "screenshots"
@@ -54,12 +62,29 @@ def browser():
 
 
 @pytest.fixture
-def page(browser):
+def anon_page(browser):
     context = browser.new_context(viewport={"width": 1280, "height": 900})
     p = context.new_page()
     p.set_default_timeout(15000)
     yield p
     context.close()
+
+
+def log_in(page, base_url: str, username: str, password: str = TEST_PASSWORD) -> None:
+    """Log in through the login page, as a person would."""
+    page.goto(base_url + "/login")
+    page.get_by_label("User name").fill(username)
+    page.get_by_label("Password").fill(password)
+    page.get_by_role("button", name="Log in").click()
+    page.wait_for_load_state("domcontentloaded")
+
+
+@pytest.fixture
+def page(anon_page, live_server):
+    """A browser logged in as an engineer through the login page."""
+    log_in(anon_page, live_server, BROWSER_USERS["engineer"])
+    assert anon_page.locator("#account-link").count() == 1, "login through the page failed"
+    return anon_page
 
 
 def _free_port() -> int:
@@ -76,6 +101,11 @@ def live_server(tmp_path_factory):
     with db.session() as s:
         load_demo(s)
     jobs.drain(db)
+    with db.session() as s:
+        for role, username in BROWSER_USERS.items():
+            accounts.create_user(
+                s, Actor(None, "test"), username=username, role=role, password=TEST_PASSWORD, now=utcnow()
+            )
     db.dispose()
     port = _free_port()
     settings = Settings(environment="test", secret_key="b" * 40, database_url=url, port=port)

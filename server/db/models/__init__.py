@@ -1,6 +1,6 @@
 """All ORM models; importing this module registers every table on Base.metadata."""
 
-from .accounts import ApiToken, AuditEvent, AuthSession, User
+from .accounts import ApiToken, AuditEvent, AuthSession, LoginAttempt, User, UserAsset
 from .portfolio import (
     Asset,
     Field,
@@ -27,10 +27,12 @@ __all__ = [
     "Fluid",
     "FluidLabPoint",
     "Job",
+    "LoginAttempt",
     "PressureSurvey",
     "ProductionMonth",
     "Upload",
     "User",
+    "UserAsset",
     "VolumetricEstimate",
     "Well",
 ]

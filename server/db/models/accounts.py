@@ -1,10 +1,10 @@
-"""Users, sessions, API tokens and the audit trail."""
+"""Users, their asset access, sessions, API tokens, login throttling and the audit trail."""
 
 from __future__ import annotations
 
 import datetime as dt
 
-from sqlalchemy import JSON, Boolean, CheckConstraint, ForeignKey, Integer, String, Text
+from sqlalchemy import JSON, Boolean, CheckConstraint, ForeignKey, Integer, String, Text, false, true
 from sqlalchemy.orm import Mapped, mapped_column
 
 from ..base import Base, utcnow
@@ -13,6 +13,9 @@ ROLES = ("viewer", "engineer", "approver", "admin")
 
 
 class User(Base):
+    """A person. ``all_assets`` (the default for a team) lets them see every asset; otherwise
+    only the assets listed in ``user_asset``."""
+
     __tablename__ = "user_account"
     __table_args__ = (
         CheckConstraint("role IN ('viewer', 'engineer', 'approver', 'admin')", name="role_known"),
@@ -26,6 +29,19 @@ class User(Base):
     failed_logins: Mapped[int] = mapped_column(Integer, default=0)
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     password_changed_at: Mapped[dt.datetime | None] = mapped_column()
+    all_assets: Mapped[bool] = mapped_column(Boolean, default=True, server_default=true())
+    must_change_password: Mapped[bool] = mapped_column(Boolean, default=False, server_default=false())
+    last_login_at: Mapped[dt.datetime | None] = mapped_column()
+
+
+class UserAsset(Base):
+    """An asset a user may access when the user is not allowed all assets."""
+
+    __tablename__ = "user_asset"
+    user_id: Mapped[int] = mapped_column(
+        ForeignKey("user_account.id", ondelete="CASCADE"), primary_key=True
+    )
+    asset_id: Mapped[int] = mapped_column(ForeignKey("asset.id", ondelete="CASCADE"), primary_key=True)
 
 
 class AuthSession(Base):
@@ -39,9 +55,13 @@ class AuthSession(Base):
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     last_seen_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     revoked_at: Mapped[dt.datetime | None] = mapped_column()
+    client_address: Mapped[str] = mapped_column(String(64), default="", server_default="")
+    user_agent: Mapped[str] = mapped_column(String(200), default="", server_default="")
 
 
 class ApiToken(Base):
+    """A bearer token for scripts: scoped, revocable, stored as a hash."""
+
     __tablename__ = "api_token"
     id: Mapped[int] = mapped_column(primary_key=True)
     user_id: Mapped[int] = mapped_column(ForeignKey("user_account.id", ondelete="CASCADE"), index=True)
@@ -51,6 +71,18 @@ class ApiToken(Base):
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     last_used_at: Mapped[dt.datetime | None] = mapped_column()
     revoked_at: Mapped[dt.datetime | None] = mapped_column()
+    token_prefix: Mapped[str] = mapped_column(String(16), default="", server_default="")
+    expires_at: Mapped[dt.datetime | None] = mapped_column()
+
+
+class LoginAttempt(Base):
+    """A failed login, kept for a while to slow down guessing (per account and per address)."""
+
+    __tablename__ = "login_attempt"
+    id: Mapped[int] = mapped_column(primary_key=True)
+    at: Mapped[dt.datetime] = mapped_column(default=utcnow, index=True)
+    username: Mapped[str] = mapped_column(String(80), index=True)
+    client_address: Mapped[str] = mapped_column(String(64), index=True)
 
 
 class AuditEvent(Base):

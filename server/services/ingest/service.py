@@ -9,7 +9,8 @@ from dataclasses import dataclass, field
 from sqlalchemy import select, tuple_
 from sqlalchemy.orm import Session
 
-from ...db.models import AuditEvent, Field, PressureSurvey, ProductionMonth, Upload, Well
+from ...db.models import Field, PressureSurvey, ProductionMonth, Upload, Well
+from .. import audit
 from ..jobs import enqueue_field_recompute
 from .kinds import file_kind, parse_rows
 from .report import UploadRejectedError, ValidationReport
@@ -53,8 +54,11 @@ def validate_upload(
     replace: bool = False,
     atmosphere_psia: float = 14.696,
     today: dt.date | None = None,
+    asset_ids: frozenset[int] | None = None,
 ) -> UploadPlan:
-    """Parse and check every row; nothing is written. ``plan.report`` lists every problem."""
+    """Parse and check every row; nothing is written. ``plan.report`` lists every problem.
+
+    ``asset_ids`` limits the fields rows may name to those assets (a user's asset access)."""
     spec = file_kind(kind, atmosphere_psia=atmosphere_psia, today=today)
     report = ValidationReport(kind=kind)
     plan = UploadPlan(kind, filename, hashlib.sha256(data).hexdigest(), len(data), report)
@@ -66,7 +70,7 @@ def validate_upload(
     rows = parse_rows(spec, table, report)
     if not rows and report.errors:
         return plan
-    wells = _resolve_wells(session, rows, report)
+    wells = _resolve_wells(session, rows, report, asset_ids)
     if kind == "surveys":
         _plan_surveys(session, rows, wells, plan, replace)
     else:
@@ -76,9 +80,10 @@ def validate_upload(
     return plan
 
 
-def _resolve_wells(session: Session, rows: list[dict], report: ValidationReport) -> dict:
+def _resolve_wells(session: Session, rows: list[dict], report: ValidationReport, asset_ids=None) -> dict:
     names = {r["field"].lower() for r in rows}
-    fields = {f.name.lower(): f for f in session.execute(select(Field)).scalars() if f.name.lower() in names}
+    stmt = select(Field) if asset_ids is None else select(Field).where(Field.asset_id.in_(sorted(asset_ids)))
+    fields = {f.name.lower(): f for f in session.execute(stmt).scalars() if f.name.lower() in names}
     wells: dict[tuple[str, str], Well] = {}
     if fields:
         for w in session.execute(
@@ -88,7 +93,8 @@ def _resolve_wells(session: Session, rows: list[dict], report: ValidationReport)
     for r in rows:
         f = fields.get(r["field"].lower())
         if f is None:
-            report.add(r["_row"], "field", r["field"], "unknown field")
+            unknown = "unknown field" if asset_ids is None else "unknown field (or not in your assets)"
+            report.add(r["_row"], "field", r["field"], unknown)
             r["_well"] = None
             continue
         w = wells.get((r["field"].lower(), r["well"].lower()))
@@ -236,6 +242,7 @@ def commit_upload(
         raise UploadRejectedError(plan.report)
     if not plan.inserts and not plan.replacements:
         return None
+    who = audit.Actor(user_id, actor)
     model = PressureSurvey if plan.kind == "surveys" else ProductionMonth
     upload = Upload(
         kind=plan.kind,
@@ -259,22 +266,43 @@ def commit_upload(
             if k != "_row":
                 setattr(current, k, v)
         current.upload_id = upload.id
-        session.add(
-            AuditEvent(
-                user_id=user_id,
-                actor=actor,
-                action="replace",
-                entity_type=model.__tablename__,
-                entity_id=current.id,
-                field_id=current.well.field_id,
-                before=before,
-                after={k: _plain(v) for k, v in values.items() if k != "_row"},
-                summary=f"upload {upload.id} replaced row {values['_row']}",
-            )
+        audit.record(
+            session,
+            who,
+            "replace",
+            model.__tablename__,
+            current.id,
+            field_id=current.well.field_id,
+            before=before,
+            after={k: _plain(v) for k, v in values.items() if k != "_row"},
+            summary=f"upload {upload.id} replaced row {values['_row']}",
         )
+    _record_upload(session, who, upload, plan)
     session.flush()
     enqueue_field_recompute(session, plan.field_ids, reason=f"upload {upload.id}")
     return upload
+
+
+def _record_upload(session: Session, who: audit.Actor, upload: Upload, plan: UploadPlan) -> None:
+    """One audit event per field touched: what the upload added and replaced there."""
+    well_ids = {v["well_id"] for v in plan.inserts} | {c.well_id for c, _ in plan.replacements}
+    field_of = dict(session.execute(select(Well.id, Well.field_id).where(Well.id.in_(well_ids))).all())
+    counts: dict[int, list[int]] = {}
+    for v in plan.inserts:
+        counts.setdefault(field_of[v["well_id"]], [0, 0])[0] += 1
+    for c, _ in plan.replacements:
+        counts.setdefault(field_of[c.well_id], [0, 0])[1] += 1
+    for field_id, (added, replaced) in sorted(counts.items()):
+        audit.record(
+            session,
+            who,
+            "upload",
+            "upload",
+            upload.id,
+            field_id=field_id,
+            after={"kind": plan.kind, "filename": upload.filename, "added": added, "replaced": replaced},
+            summary=f"upload {upload.id} ({plan.kind}): {added} added, {replaced} replaced",
+        )
 
 
 def _plain(v):
