@@ -16,9 +16,9 @@ import pytest
 import uvicorn
 
 from server.app import create_app
+from server.db.base import utcnow
 from server.db.migrate import upgrade
 from server.db.session import Database
-from server.db.base import utcnow
 from server.services import accounts, jobs
 from server.services.audit import Actor
 from server.services.demo import load_demo
