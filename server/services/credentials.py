@@ -79,7 +79,7 @@ def live_session(
     auth, user = found
     if auth.revoked_at is not None or not user.is_active:
         return None
-    if now - as_utc(auth.created_at) > timeouts.absolute or now - as_utc(auth.last_seen_at) > timeouts.idle:
+    if now - as_utc(auth.created_at) >= timeouts.absolute or now - as_utc(auth.last_seen_at) >= timeouts.idle:
         auth.revoked_at = now
         return None
     if now - as_utc(auth.last_seen_at) > TOUCH_EVERY:

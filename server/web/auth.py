@@ -266,13 +266,50 @@ def permission_of(route) -> Permission | Literal["public"] | None:
     return "public" if public_route in calls else None
 
 
+def route_permissions(app) -> list[tuple[set[str], str, object, Permission | str | None]]:
+    """(methods, path, route, permission) of every route, included routers flattened.
+
+    ``permission`` is a Permission, "public", "mount" for a mounted app, or None when the route
+    declares nothing."""
+    from fastapi.routing import iter_route_contexts
+    from starlette.routing import Mount
+
+    out = []
+    for ctx in iter_route_contexts(app.routes):
+        if isinstance(ctx.original_route, Mount):
+            out.append((set(), ctx.path, ctx.original_route, "mount"))
+            continue
+        dependant = getattr(ctx, "dependant", None)
+        declared = permission_of(ctx) if dependant is not None else None
+        out.append((set(ctx.methods or ()), ctx.path, ctx.original_route, declared))
+    return out
+
+
 def document_auth_errors(app) -> None:
     """Add the 401/403 answers to every protected operation of the OpenAPI schema."""
-    from fastapi.routing import APIRoute
-
     from .schemas import ErrorRead
 
-    for route in app.routes:
-        if isinstance(route, APIRoute) and isinstance(permission_of(route), Permission):
-            for status, text in AUTH_ERRORS.items():
-                route.responses.setdefault(status, {"model": ErrorRead, "description": text})
+    generate = app.openapi
+
+    def openapi() -> dict:
+        if app.openapi_schema:
+            return app.openapi_schema
+        schema = generate()
+        protected = {
+            (path, m.lower())
+            for methods, path, _, permission in route_permissions(app)
+            if isinstance(permission, Permission)
+            for m in methods
+        }
+        schema.setdefault("components", {}).setdefault("schemas", {}).setdefault(
+            "ErrorRead", ErrorRead.model_json_schema()
+        )
+        error = {"application/json": {"schema": {"$ref": "#/components/schemas/ErrorRead"}}}
+        for path, operations in schema.get("paths", {}).items():
+            for method, op in operations.items():
+                if (path, method) in protected:
+                    for status, text in AUTH_ERRORS.items():
+                        op["responses"].setdefault(str(status), {"description": text, "content": error})
+        return schema
+
+    app.openapi = openapi

@@ -88,7 +88,7 @@ def session_client(app, db, user_id: int) -> TestClient:
         raw, auth = credentials.start_session(s, s.get(User, user_id), now=app.state.clock())
         csrf = auth.csrf_token
     c = TestClient(app, base_url=BASE_URL, headers={"X-CSRF-Token": csrf})
-    c.cookies.set(SESSION_COOKIE, raw)
+    c.cookies.set(SESSION_COOKIE, raw, domain="127.0.0.1")
     c.csrf_token = csrf
     c.user_id = user_id
     return c

@@ -38,9 +38,7 @@ class UserAsset(Base):
     """An asset a user may access when the user is not allowed all assets."""
 
     __tablename__ = "user_asset"
-    user_id: Mapped[int] = mapped_column(
-        ForeignKey("user_account.id", ondelete="CASCADE"), primary_key=True
-    )
+    user_id: Mapped[int] = mapped_column(ForeignKey("user_account.id", ondelete="CASCADE"), primary_key=True)
     asset_id: Mapped[int] = mapped_column(ForeignKey("asset.id", ondelete="CASCADE"), primary_key=True)
 
 
