@@ -30,6 +30,20 @@ from .schemas import (
 
 router = APIRouter(prefix="/api")
 NOT_FOUND = {404: {"model": ErrorRead, "description": "no such field (or not in your assets)"}}
+_REJECTED_OR_INVALID = {
+    "anyOf": [
+        {"$ref": "#/components/schemas/UploadResultRead"},
+        {"$ref": "#/components/schemas/HTTPValidationError"},
+    ]
+}
+UPLOAD_RESPONSES = {
+    404: {"model": ErrorRead, "description": "unknown upload kind"},
+    409: {"model": UploadResultRead, "description": "warnings need accept_warnings=true"},
+    422: {
+        "description": "rows rejected (report), or the request itself malformed",
+        "content": {"application/json": {"schema": _REJECTED_OR_INVALID}},
+    },
+}
 
 
 @router.get("/health", response_model=HealthRead, tags=["meta"], dependencies=[Public])
@@ -105,7 +119,7 @@ def _run_upload(
     "/uploads/{kind}",
     response_model=UploadResultRead,
     tags=["uploads"],
-    responses={422: {"model": UploadResultRead}, 409: {"model": UploadResultRead}},
+    responses=UPLOAD_RESPONSES,
 )
 async def upload_file(
     kind: str,
@@ -129,7 +143,7 @@ async def upload_file(
     "/uploads/{kind}/rows",
     response_model=UploadResultRead,
     tags=["uploads"],
-    responses={422: {"model": UploadResultRead}, 409: {"model": UploadResultRead}},
+    responses=UPLOAD_RESPONSES,
 )
 def upload_rows(
     kind: str,

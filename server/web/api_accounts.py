@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import dataclasses
-import datetime as dt
 from typing import Annotated, Any
 
 from fastapi import APIRouter, HTTPException, Path, Query, Request
@@ -13,7 +12,7 @@ from ..db.models import User
 from ..services import accounts, audit, credentials
 from .auth import AccountHolder, Auditor, Reader, UserAdmin, now
 from .deps import SessionDep
-from .schemas import ErrorRead, FieldId
+from .schemas import ErrorRead, FieldId, UtcDatetime
 
 router = APIRouter(prefix="/api", tags=["accounts"])
 
@@ -33,10 +32,10 @@ class TokenRead(BaseModel):
     name: str
     prefix: str
     scopes: list[str]
-    created_at: dt.datetime
-    last_used_at: dt.datetime | None
-    expires_at: dt.datetime | None
-    revoked_at: dt.datetime | None
+    created_at: UtcDatetime
+    last_used_at: UtcDatetime | None
+    expires_at: UtcDatetime | None
+    revoked_at: UtcDatetime | None
 
 
 class TokenCreate(BaseModel):
@@ -58,13 +57,13 @@ class UserRead(BaseModel):
     all_assets: bool
     asset_ids: list[int]
     must_change_password: bool
-    created_at: dt.datetime
-    last_login_at: dt.datetime | None
+    created_at: UtcDatetime
+    last_login_at: UtcDatetime | None
 
 
 class AuditRead(BaseModel):
     id: int
-    at: dt.datetime
+    at: UtcDatetime
     actor: str
     action: str
     entity_type: str

@@ -248,6 +248,10 @@ AUTH_ERRORS = {
     401: "no valid session or API token",
     403: "the role, or the API token's scopes, do not allow this",
 }
+BODY_ERRORS = {
+    400: "the request body could not be parsed",
+    413: "the request body is larger than the limit (max_upload_bytes)",
+}
 
 
 def _declared(dependant) -> list:
@@ -286,7 +290,8 @@ def route_permissions(app) -> list[tuple[set[str], str, object, Permission | str
 
 
 def document_auth_errors(app) -> None:
-    """Add the 401/403 answers to every protected operation of the OpenAPI schema."""
+    """Add the 401/403 answers to every protected operation of the OpenAPI schema, and
+    400/413 to every operation that takes a body."""
     from .schemas import ErrorRead
 
     generate = app.openapi
@@ -307,9 +312,11 @@ def document_auth_errors(app) -> None:
         error = {"application/json": {"schema": {"$ref": "#/components/schemas/ErrorRead"}}}
         for path, operations in schema.get("paths", {}).items():
             for method, op in operations.items():
-                if (path, method) in protected:
-                    for status, text in AUTH_ERRORS.items():
-                        op["responses"].setdefault(str(status), {"description": text, "content": error})
+                documented = (AUTH_ERRORS if (path, method) in protected else {}) | (
+                    BODY_ERRORS if "requestBody" in op else {}
+                )
+                for status, text in documented.items():
+                    op["responses"].setdefault(str(status), {"description": text, "content": error})
         return schema
 
     app.openapi = openapi

@@ -6,7 +6,15 @@ import datetime as dt
 from typing import Annotated, Any, Literal
 
 from fastapi import Path
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import AfterValidator, BaseModel, ConfigDict, Field
+
+
+def _utc(value: dt.datetime) -> dt.datetime:
+    """Stored times are UTC; SQLite hands them back without a zone, which RFC 3339 needs."""
+    return value if value.tzinfo is not None else value.replace(tzinfo=dt.UTC)
+
+
+UtcDatetime = Annotated[dt.datetime, AfterValidator(_utc)]
 
 # Ids are 32-bit integers on PostgreSQL: larger values are a 422, not a database error.
 FieldId = Annotated[int, Path(ge=1, le=2**31 - 1, description="a field's id")]
@@ -39,7 +47,7 @@ class EstimateRead(Schema):
     flags: list[Any]
     inputs_fingerprint: str
     engine_version: str
-    computed_at: dt.datetime
+    computed_at: UtcDatetime
 
 
 class PortfolioRowRead(Schema):
