@@ -125,7 +125,9 @@ def live_server(tmp_path_factory):
 
 
 @pytest.fixture
-def console_errors(page):
+def console_errors(anon_page):
+    """Console errors of the test's browser page (``page`` is ``anon_page`` after logging in)."""
+    page = anon_page
     errors: list[str] = []
     page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
     page.on("pageerror", lambda e: errors.append(str(e)))
