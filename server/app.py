@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import logging
 from contextlib import asynccontextmanager
 from pathlib import Path
 
@@ -20,6 +21,7 @@ from .web.errors import install_error_handlers
 from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
 from .web.templating import make_templates
 
+log = logging.getLogger(__name__)
 PLOTLY_JS = Path(plotly.__file__).parent / "package_data" / "plotly.min.js"
 
 
@@ -33,6 +35,10 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     """Build the app. ``database`` lets tests share a connection; by default one is made
     from ``settings.database_url`` when the app starts."""
     settings = settings or Settings()
+    if settings.environment == "production" and not settings.behind_tls:
+        log.warning(
+            "production without TANKBOOK_BEHIND_TLS: cookies are not marked Secure (docs/deployment.md)"
+        )
 
     @asynccontextmanager
     async def lifespan(app: FastAPI):

@@ -98,3 +98,16 @@ def add_volumetric_history(
             )
     session.flush()
     return hist
+
+
+def field_with_estimate(db, name: str = "Upland", **field_kwargs) -> int:
+    """A field with a volumetric history and its computed estimate; returns its id."""
+    from server.services import jobs
+
+    with db.session() as s:
+        f = make_field(s, name=name, **field_kwargs)
+        add_volumetric_history(s, f)
+        jobs.enqueue_field_recompute(s, [f.id], reason="test")
+        fid = f.id
+    jobs.drain(db)
+    return fid

@@ -11,7 +11,7 @@ import hashlib
 import secrets
 from dataclasses import dataclass
 
-from sqlalchemy import select, update
+from sqlalchemy import delete, select, update
 from sqlalchemy.orm import Session
 
 from ..db.models import ApiToken, AuthSession, User
@@ -21,6 +21,7 @@ from .throttle import as_utc
 
 TOKEN_PREFIX = "tbk_"  # noqa: S105 - a public marker that makes leaked tokens easy to scan for
 TOUCH_EVERY = dt.timedelta(minutes=1)  # last-seen/last-used times are kept to the minute
+KEEP_ENDED_SESSIONS = dt.timedelta(days=31)  # longer than any absolute timeout the settings allow
 
 
 class CredentialError(ValueError):
@@ -47,7 +48,14 @@ class SessionTimeouts:
 def start_session(
     session: Session, user: User, *, now: dt.datetime, client_address: str = "", user_agent: str = ""
 ) -> tuple[str, AuthSession]:
-    """A new session with a fresh token and form token; returns the raw token for the cookie."""
+    """A new session with a fresh token and form token; returns the raw token for the cookie.
+
+    The user's sessions older than any allowed lifetime are deleted on the way."""
+    session.execute(
+        delete(AuthSession).where(
+            AuthSession.user_id == user.id, AuthSession.created_at < now - KEEP_ENDED_SESSIONS
+        )
+    )
     raw = secrets.token_urlsafe(32)
     auth = AuthSession(
         token_hash=token_hash(raw),

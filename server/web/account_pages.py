@@ -9,7 +9,7 @@ from fastapi.responses import HTMLResponse, RedirectResponse
 from sqlalchemy import select
 
 from ..db.models import AuthSession, User
-from ..services import accounts, credentials
+from ..services import accounts, credentials, throttle
 from ..services.passwords import PasswordPolicyError, verify_password
 from ..services.permissions import SCOPE_TITLES
 from ..services.throttle import ThrottlePolicy
@@ -166,8 +166,14 @@ def change_password(
     repeat_password: Annotated[str, Form(max_length=2000)],
 ):
     me = session.get(User, user.user_id)
+    clock, policy = now(request), ThrottlePolicy.from_settings(settings)
     error = ""
-    if not verify_password(me.password_hash, current_password):
+    # A stolen session must not become a way to guess the password: same limits as the login.
+    wait = throttle.retry_after_s(session, me.username, _client(request), clock, policy)
+    if wait > 0:
+        error = f"Too many wrong passwords. Try again in {int(wait + 0.999)} seconds."
+    elif not verify_password(me.password_hash, current_password):
+        throttle.record_failure(session, me.username, _client(request), clock, policy)
         error = "The current password is wrong."
     elif new_password != repeat_password:
         error = "The two new passwords differ."

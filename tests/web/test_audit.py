@@ -8,20 +8,14 @@ import datetime as dt
 from sqlalchemy import select
 
 from server.db.models import AuditEvent, User
-from server.services import audit, jobs
-from tests.factories import add_volumetric_history, make_field
+from server.services import audit
+from tests.factories import field_with_estimate
 
 ROW = {"field": "Upland", "well": "W-2", "survey_date": "2017-01-15", "pressure_psia": 1500}
 
 
 def _seed(db) -> int:
-    with db.session() as s:
-        f = make_field(s, name="Upland")
-        add_volumetric_history(s, f)
-        jobs.enqueue_field_recompute(s, [f.id], reason="test")
-        fid = f.id
-    jobs.drain(db)
-    return fid
+    return field_with_estimate(db)
 
 
 def _events(db, **where):

@@ -254,3 +254,14 @@ def test_create_user_refuses_weak_passwords_and_bad_names(db):
             accounts.create_user(s, Actor(None, "t"), username="Bad Name!", role="viewer")
         with pytest.raises(ValueError, match="unknown role"):
             accounts.create_user(s, Actor(None, "t"), username="pat", role="superuser")
+
+
+def test_guessing_the_current_password_on_the_account_page_is_slowed(db, app, client):
+    _free_failures(app, account=2)
+    form = {"csrf_token": client.csrf_token, "new_password": "ochre-kettle-meadow-31"}
+    form["repeat_password"] = form["new_password"]
+    for _ in range(2):
+        r = client.post("/account/password", data=form | {"current_password": "a-wrong-guess-here"})
+        assert r.status_code == 422 and "current password is wrong" in r.text
+    r = client.post("/account/password", data=form | {"current_password": TEST_PASSWORD})
+    assert r.status_code == 422 and "Too many wrong passwords" in r.text

@@ -16,8 +16,7 @@ from hypothesis.errors import Unsatisfiable
 from schemathesis import checks
 from schemathesis.generation import GenerationMode
 
-from server.services import jobs
-from tests.factories import add_volumetric_history, make_field
+from tests.factories import field_with_estimate
 
 EXAMPLES = {GenerationMode.POSITIVE: 25, GenerationMode.NEGATIVE: 15}
 CHECKS = [
@@ -32,11 +31,7 @@ CHECKS = [
 
 @pytest.fixture
 def api_schema(db, app, token_client):
-    with db.session() as s:
-        f = make_field(s, name="Upland")
-        add_volumetric_history(s, f)
-        jobs.enqueue_field_recompute(s, [f.id], reason="test")
-    jobs.drain(db)
+    field_with_estimate(db)
     script = token_client(["read", "upload", "analyse"], role="admin")
     auth = {"Authorization": f"Bearer {script.token}"}
     return schemathesis.openapi.from_asgi("/openapi.json", app, headers=dict(auth)), auth
