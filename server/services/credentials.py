@@ -52,9 +52,9 @@ def start_session(
 
     The user's sessions older than any allowed lifetime are deleted on the way."""
     session.execute(
-        delete(AuthSession).where(
-            AuthSession.user_id == user.id, AuthSession.created_at < now - KEEP_ENDED_SESSIONS
-        )
+        delete(AuthSession)
+        .where(AuthSession.user_id == user.id, AuthSession.created_at < now - KEEP_ENDED_SESSIONS)
+        .execution_options(synchronize_session=False)  # SQLite's naive times do not compare in Python
     )
     raw = secrets.token_urlsafe(32)
     auth = AuthSession(

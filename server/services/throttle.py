@@ -70,7 +70,11 @@ def retry_after_s(
 def record_failure(
     session: Session, username: str, address: str, now: dt.datetime, policy: ThrottlePolicy
 ) -> None:
-    session.execute(delete(LoginAttempt).where(LoginAttempt.at < now - policy.window))
+    session.execute(
+        delete(LoginAttempt)
+        .where(LoginAttempt.at < now - policy.window)
+        .execution_options(synchronize_session=False)  # SQLite's naive times do not compare in Python
+    )
     session.add(LoginAttempt(at=now, username=username[:80], client_address=address[:64]))
     session.flush()
 
