@@ -75,8 +75,8 @@ def log_in(page, base_url: str, username: str, password: str = TEST_PASSWORD) ->
     page.goto(base_url + "/login")
     page.get_by_label("User name").fill(username)
     page.get_by_label("Password").fill(password)
-    page.get_by_role("button", name="Log in").click()
-    page.wait_for_load_state("domcontentloaded")
+    with page.expect_navigation():  # the form posts, then the server redirects
+        page.get_by_role("button", name="Log in").click()
 
 
 @pytest.fixture
