@@ -1,46 +1,59 @@
 """One field's analysis: the engine's entry point for the services layer.
 
-Stage 1 (:mod:`.prepare`) corrects the data into p/z points; stage 2 fits the p/z
-line (and, as they land, the other models and the diagnosis). The result is a frozen
-tree of dataclasses that the services store as JSON with a summary in columns.
+Stage 1 (:mod:`.prepare`) corrects the data into p/z points; stage 2 (here) fits the
+single-tank p/z estimate the engineer chose (plain, anchored, with a given or fitted
+ce), keeps the uncorrected line beside a corrected one for comparison, and fits the
+comparable models on the same screened points. The result is a frozen tree of
+dataclasses that the services store as JSON with a summary in columns.
 """
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 from . import ENGINE_VERSION
-from .errors import EngineError
-from .inputs import FieldInputs
+from .errors import EngineError, InputRangeError, InsufficientDataError
+from .inputs import OVERPRESSURE_MODES, WEIGHTINGS, AnalysisChoices, FieldInputs
+from .modelfit import ModelFit
+from .overpressure import single_tank_modelfit, tank_ce_modelfit
 from .prepare import PreparedData, prepare
-from .pz import fit_pz_line, recovery_factor_volumetric
+from .pz import PointStatus, PzEstimate, estimate_pz, method_key
 
-
-@dataclass(frozen=True)
-class PzResult:
-    """The single-tank p/z estimate."""
-
-    method: str
-    n_points: int
-    intercept_psia: float
-    slope_psia_per_bscf: float
-    giip_bscf: float
-    eur_bscf: float
-    recovery_factor_frac: float
+# Reported beside the numbers everywhere they are shown (pages, exports).
+CAUTION = (
+    "Intervals reflect survey scatter only, not model error (aquifer, compartments, wrong z). "
+    "Estimates support, and do not replace, the judgement of qualified engineers and the "
+    "reserves rules that apply (regulators, SPE-PRMS)."
+)
 
 
 @dataclass(frozen=True)
 class FieldAnalysis:
-    """Result of one field analysis (Bscf at the field's standard conditions)."""
+    """Result of one field analysis (Bscf at the field's standard conditions).
+
+    Summary fields: ``giip_low_bscf``/``giip_high_bscf`` are the bootstrap P90/P10 of
+    GIIP (an 80 % range; ``giip_range_kind`` says so) and ``giip_best_bscf`` the
+    least-squares estimate; ``giip_ci_*`` hold the confidence interval named by
+    ``giip_ci_kind`` (Fieller at the chosen level). A later ``diagnosis`` section
+    (model comparison, flags) builds on ``models``, which are all fitted to the same
+    screened points.
+    """
 
     status: str  # "ok" or "refused"
     message: str
     method: str
     prepared: PreparedData
-    pz: PzResult | None = None
+    pz: PzEstimate | None = None
+    pz_uncorrected: PzEstimate | None = None  # the plain line, when a ce correction applies
+    models: tuple[ModelFit, ...] = ()
     giip_low_bscf: float | None = None
     giip_best_bscf: float | None = None
     giip_high_bscf: float | None = None
+    giip_range_kind: str | None = None
+    giip_ci_low_bscf: float | None = None
+    giip_ci_high_bscf: float | None = None
+    giip_ci_kind: str | None = None
     eur_bscf: float | None = None
     recovery_factor_frac: float | None = None
     remaining_bscf: float | None = None
@@ -53,27 +66,146 @@ class FieldAnalysis:
         return self.prepared.cumulative_gas_bscf
 
 
+def check_choices(choices: AnalysisChoices) -> None:
+    """Raise InputRangeError for choices the estimators cannot honour."""
+    if choices.overpressure_mode not in OVERPRESSURE_MODES:
+        raise InputRangeError(
+            f"unknown overpressure mode {choices.overpressure_mode!r}; "
+            f"choose one of {list(OVERPRESSURE_MODES)}"
+        )
+    if choices.weighting not in WEIGHTINGS:
+        raise InputRangeError(f"unknown weighting {choices.weighting!r}; choose one of {list(WEIGHTINGS)}")
+    ce = choices.effective_compressibility_per_psi
+    if choices.overpressure_mode == "given" and (ce is None or not ce > 0):
+        raise InputRangeError(
+            "overpressure mode 'given' needs a positive effective_compressibility_per_psi [1/psi], "
+            f"e.g. 1.4e-05; got {ce!r}"
+        )
+
+
 def analyse_field(inputs: FieldInputs) -> FieldAnalysis:
-    """Single-tank p/z analysis of a field; refuses with a reason when data are too thin."""
-    prepared = prepare(inputs)
-    _, gp, pz, _ = prepared.arrays()
+    """Prepare a field's data and analyse it; refuses with a reason when data are too thin."""
+    check_choices(inputs.choices)
+    return analyse_prepared(prepare(inputs), inputs.choices)
+
+
+def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldAnalysis:
+    """Stage 2 on prepared points (see :func:`analyse_field`)."""
+    check_choices(choices)
+    mode = choices.overpressure_mode
     try:
-        line = fit_pz_line(gp, pz)
-    except EngineError as exc:
-        return FieldAnalysis(status="refused", message=str(exc), method="pz-ols", prepared=prepared)
-    rf = recovery_factor_volumetric(prepared.abandonment_pz_psia, line.intercept_psia)
-    giip = line.giip_bscf
-    result = PzResult(
-        "pz-ols", line.n_points, line.intercept_psia, line.slope_psia_per_bscf, giip, giip * rf, rf
+        pz = pz_estimate_for(prepared, choices, mode)
+    except InsufficientDataError as exc:
+        return FieldAnalysis(
+            status="refused",
+            message=str(exc),
+            method=_attempted_method(prepared, choices),
+            prepared=prepared,
+            notes=(CAUTION,),
+        )
+    notes = list(pz.notes)
+    uncorrected = None
+    if mode != "off":
+        try:
+            uncorrected = pz_estimate_for(prepared, choices, "off")
+            notes.append(
+                f"Without the ce correction the p/z line would give {uncorrected.giip_bscf:,.1f} Bscf "
+                f"({uncorrected.giip_bscf / pz.giip_bscf - 1:+.0%} against the corrected estimate)."
+            )
+        except InsufficientDataError as exc:
+            notes.append(f"No uncorrected line for comparison: {exc}.")
+    screened = screened_data(prepared, pz)
+    models = []
+    for fit_model in (single_tank_modelfit, tank_ce_modelfit):
+        try:
+            models.append(fit_model(screened, choices))
+        except EngineError as exc:  # a model that cannot be fitted is left out, with the reason
+            notes.append(f"{fit_model.__name__.removesuffix('_modelfit')}: not fitted ({exc}).")
+    g = pz.giip_range_bscf
+    boot, ci = g.bootstrap, g.ci_fieller or g.ci_delta
+    level = f"{100 * pz.confidence_level:.0f} %"
+    low, high, range_kind = (
+        (boot.p90, boot.p10, "P90-P10 of a residual bootstrap (80 % range)")
+        if boot
+        else (ci.low, ci.high, f"{ci.method} {level} confidence interval")
     )
+    notes.append(CAUTION)
     return FieldAnalysis(
         status="ok",
-        message=f"single-tank p/z line through {line.n_points} surveys",
-        method="pz-ols",
+        message=f"{pz.title} through {pz.n_used} surveys"
+        + (f" ({pz.n_outliers} set aside as outliers)" if pz.n_outliers else ""),
+        method=pz.method,
         prepared=prepared,
-        pz=result,
-        giip_best_bscf=giip,
-        eur_bscf=result.eur_bscf,
-        recovery_factor_frac=rf,
-        remaining_bscf=result.eur_bscf - prepared.cumulative_gas_bscf,
+        pz=pz,
+        pz_uncorrected=uncorrected,
+        models=tuple(models),
+        giip_low_bscf=low,
+        giip_best_bscf=pz.giip_bscf,
+        giip_high_bscf=high,
+        giip_range_kind=range_kind,
+        giip_ci_low_bscf=ci.low,
+        giip_ci_high_bscf=ci.high,
+        giip_ci_kind=f"{ci.method.capitalize()} {level} confidence interval",
+        eur_bscf=pz.eur_bscf,
+        recovery_factor_frac=pz.recovery_factor_frac,
+        remaining_bscf=pz.remaining_bscf,
+        notes=tuple(notes),
     )
+
+
+def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str) -> PzEstimate:
+    """The p/z estimate of the included surveys with the choices' options and ``mode``.
+
+    Point statuses cover every prepared point (``index`` = SurveyPoint.index): the
+    engineer's exclusions keep their reason; outliers carry the rule's reason.
+    """
+    used = [p for p in prepared.points if p.included]
+    pi = prepared.initial_pz_psia * prepared.initial_z
+    pa = prepared.abandonment_pz_psia * prepared.abandonment_z
+    ce = {"off": 0.0, "given": choices.effective_compressibility_per_psi, "fitted": None}[mode]
+    est = estimate_pz(
+        [p.gp_bscf for p in used],
+        [p.pz_psia for p in used],
+        [p.weight for p in used] if choices.weighting == "quality" else None,
+        abandonment_pz_psia=prepared.abandonment_pz_psia,
+        cumulative_gas_bscf=prepared.cumulative_gas_bscf,
+        pressure_drop_psi=[pi - p.p_datum_psia for p in used],
+        abandonment_pressure_drop_psi=pi - pa,
+        anchor_pz_psia=prepared.initial_pz_psia if choices.anchor_initial else None,
+        ce_per_psi=ce,
+        overpressure_mode=mode,
+        confidence_level=choices.confidence_level,
+        bootstrap_samples=choices.bootstrap_samples,
+        random_seed=choices.random_seed,
+    )
+    by_index = {u.index: s for u, s in zip(used, est.points, strict=True)}
+    statuses = []
+    for p in prepared.points:
+        s = by_index.get(p.index)
+        if s is None:
+            f = 1.0 - est.ce_per_psi * (pi - p.p_datum_psia)
+            reason = p.reason or "set aside by the engineer"
+            s = PointStatus(p.index, "excluded", reason, None, None, p.pz_psia * f)
+        else:
+            s = dataclasses.replace(s, index=p.index)
+        statuses.append(s)
+    return dataclasses.replace(est, points=tuple(statuses), n_excluded=len(prepared.points) - len(used))
+
+
+def screened_data(prepared: PreparedData, pz: PzEstimate) -> PreparedData:
+    """The prepared points with the estimate's outliers also set aside (with the rule's
+    reason), so every model is compared on the same surveys."""
+    out = {s.index: s.reason for s in pz.points if s.status == "outlier"}
+    if not out:
+        return prepared
+    points = tuple(
+        dataclasses.replace(p, included=False, reason=out[p.index]) if p.index in out else p
+        for p in prepared.points
+    )
+    return dataclasses.replace(prepared, points=points)
+
+
+def _attempted_method(prepared: PreparedData, choices: AnalysisChoices) -> str:
+    weights = {p.weight for p in prepared.points if p.included}
+    weighted = choices.weighting == "quality" and len(weights) > 1
+    return method_key(weighted, choices.anchor_initial, choices.overpressure_mode)
