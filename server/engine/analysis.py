@@ -108,10 +108,6 @@ def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldA
     if mode != "off":
         try:
             uncorrected = pz_estimate_for(prepared, choices, "off")
-            notes.append(
-                f"Without the ce correction the p/z line would give {uncorrected.giip_bscf:,.1f} Bscf "
-                f"({uncorrected.giip_bscf / pz.giip_bscf - 1:+.0%} against the corrected estimate)."
-            )
         except InsufficientDataError as exc:
             notes.append(f"No uncorrected line for comparison: {exc}.")
     screened = screened_data(prepared, pz)
@@ -177,8 +173,10 @@ def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str)
         confidence_level=choices.confidence_level,
         bootstrap_samples=choices.bootstrap_samples,
         random_seed=choices.random_seed,
+        groups=[p.well for p in used],
+        labels=[p.index for p in used],
     )
-    by_index = {u.index: s for u, s in zip(used, est.points, strict=True)}
+    by_index = {s.index: s for s in est.points}
     statuses = []
     for p in prepared.points:
         s = by_index.get(p.index)
@@ -186,8 +184,6 @@ def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str)
             f = 1.0 - est.ce_per_psi * (pi - p.p_datum_psia)
             reason = p.reason or "set aside by the engineer"
             s = PointStatus(p.index, "excluded", reason, None, None, p.pz_psia * f)
-        else:
-            s = dataclasses.replace(s, index=p.index)
         statuses.append(s)
     return dataclasses.replace(est, points=tuple(statuses), n_excluded=len(prepared.points) - len(used))
 
@@ -195,7 +191,7 @@ def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str)
 def screened_data(prepared: PreparedData, pz: PzEstimate) -> PreparedData:
     """The prepared points with the estimate's outliers also set aside (with the rule's
     reason), so every model is compared on the same surveys."""
-    out = {s.index: s.reason for s in pz.points if s.status == "outlier"}
+    out = {s.index: f"outlier rule: {s.reason}" for s in pz.points if s.status == "outlier"}
     if not out:
         return prepared
     points = tuple(

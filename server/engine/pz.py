@@ -25,22 +25,23 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats as _st
 
 from .errors import InputRangeError, InsufficientDataError
 from .stats import (
     Interval,
     Percentiles,
     RunsTest,
-    bonferroni_outlier_screen,
     fieller_ratio_interval,
+    linear_subset_fits,
     p90_p50_p10,
     ratio_delta_se,
+    robust_outlier_screen,
     runs_test,
     t_multiplier,
+    t_quantile,
     weighted_least_squares,
 )
-from .tankline import TankLineFit, bootstrap_phi, fit_tank_line
+from .tankline import TankLineFit, bootstrap_phi, fit_tank_line, screen_design
 
 #: Fewest usable surveys for a free line (2 parameters) and for one anchored at pi/zi:
 #: two degrees of freedom are left to estimate the survey scatter (common practice).
@@ -49,6 +50,7 @@ MIN_POINTS_ANCHORED = 3
 #: The fitted line must fall at least this fraction below pi/zi by the last survey
 #: before it may be extrapolated (common practice: "10 % depletion"; from memory).
 MIN_DEPLETION_FRAC = 0.10
+Z_90 = 1.2815515655446004  # standard normal 90th percentile
 OUTLIER_ALPHA = 0.05  # family-wise, Bonferroni
 OUTLIER_MAX_FRACTION = 0.2
 
@@ -227,6 +229,8 @@ def estimate_pz(
     bootstrap_samples: int = 1000,
     random_seed: int = 0,
     screen_outliers: bool = True,
+    groups=None,
+    labels=None,
     min_depletion_frac: float = MIN_DEPLETION_FRAC,
 ) -> PzEstimate:
     """Fit the (corrected) p/z line and derive GIIP, EUR, RF and remaining gas.
@@ -257,7 +261,14 @@ def estimate_pz(
     random_seed : int
         Seed of the bootstrap: the same inputs always give the same numbers.
     screen_outliers : bool
-        Apply the Bonferroni outlier rule (:func:`.stats.bonferroni_outlier_screen`).
+        Apply the outlier rule (:func:`.stats.robust_outlier_screen`).
+    groups : sequence of str, optional
+        The well of each survey. Outliers are isolated bad readings: when the rule
+        would set aside two or more surveys of one well, that well disagrees with the
+        line as a group (a compartment or a gauge offset, evidence for the diagnosis),
+        so those surveys are kept and a note says so.
+    labels : sequence of int, optional
+        Index reported in each PointStatus (default: position in the arrays).
 
     Returns
     -------
@@ -298,16 +309,7 @@ def estimate_pz(
     keep = np.ones(n, bool)
     outliers = ()
     if screen_outliers:
-        screen = bonferroni_outlier_screen(
-            lambda m: fit_subset(m).lin,
-            n,
-            alpha=OUTLIER_ALPHA,
-            max_fraction=OUTLIER_MAX_FRACTION,
-            min_keep=need,
-        )
-        keep, outliers = screen.keep, screen.outliers
-        if screen.stopped_reason:
-            notes.append("Outlier screening: " + screen.stopped_reason + ".")
+        keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, notes)
     fit = fit_subset(keep)
     a, b, ce = fit.phi
     _refuse_unless_declining(fit, x[keep], anchored, confidence_level, min_depletion_frac)
@@ -320,7 +322,7 @@ def estimate_pz(
         # Scale the resampled residuals so that a bootstrap percentile range of a linear
         # function of the parameters matches the exact Student-t interval at P90/P10
         # (a plain residual bootstrap behaves like z and under-covers with few points).
-        scale = float(_st.t.ppf(0.9, fit.dof) / _st.norm.ppf(0.9))
+        scale = t_quantile(0.9, fit.dof) / Z_90
         phi_star = bootstrap_phi(
             fit,
             x[keep],
@@ -362,7 +364,7 @@ def estimate_pz(
                     else "more support than rock and water expansion can give (an aquifer?)."
                 )
             )
-    points = _point_statuses(fit, x, y, d, keep, outliers)
+    points = _point_statuses(fit, x, y, d, keep, outliers, labels)
     return PzEstimate(
         method=method_key(weighted, anchored, overpressure_mode),
         title=_method_title(weighted, anchored, overpressure_mode),
@@ -399,6 +401,39 @@ def estimate_pz(
         points=points,
         notes=tuple(notes),
     )
+
+
+def _screen(x, y, w, d, anchor, ce, groups, need, notes):
+
+    design, offset = screen_design(x, y, w, d, anchor=anchor, ce=ce)
+    fits = linear_subset_fits(design, y, w, offset)
+
+    def run(protected):
+        return robust_outlier_screen(
+            fits,
+            x.size,
+            design.shape[1],
+            alpha=OUTLIER_ALPHA,
+            max_fraction=OUTLIER_MAX_FRACTION,
+            min_keep=need,
+            protected=protected,
+        )
+
+    screen = run(None)
+    if groups is not None and screen.outliers:
+        g = np.asarray(groups, dtype=object)
+        found = g[[o.index for o in screen.outliers]]
+        wells = sorted({k for k in found if np.sum(found == k) >= 2})
+        if wells:
+            for k in wells:
+                notes.append(
+                    f"{int(np.sum(found == k))} surveys of well {k} lie off the line together: kept in the "
+                    "fit, not treated as isolated gauge errors (a compartment or a gauge offset?)."
+                )
+            screen = run(np.isin(g, wells))
+    if screen.stopped_reason:
+        notes.append("Outlier screening: " + screen.stopped_reason + ".")
+    return screen.keep, screen.outliers
 
 
 def _check_inputs(x, y, w, d, mode, ce, level, samples):
@@ -449,7 +484,7 @@ def _refuse_unless_declining(fit: TankLineFit, x, anchored, level, min_frac):
         )
 
 
-def _point_statuses(fit, x, y, d, keep, outliers) -> tuple[PointStatus, ...]:
+def _point_statuses(fit, x, y, d, keep, outliers, labels) -> tuple[PointStatus, ...]:
     a, b, ce = fit.phi
     f = 1.0 - ce * d
     fitted = (a + b * x) / f
@@ -459,15 +494,15 @@ def _point_statuses(fit, x, y, d, keep, outliers) -> tuple[PointStatus, ...]:
         o = why.get(i)
         reason = None
         if o is not None:
-            side = "below" if o.deleted_residual < 0 else "above"
+            side = "below" if o.residual < 0 else "above"
             reason = (
-                f"outlier: p/z {y[i]:,.0f} psia is {abs(o.deleted_residual):,.0f} psia {side} the line "
-                f"through the other points, {abs(o.studentized):.1f} σ; the limit for {o.n_tested} "
-                f"points is {o.threshold:.1f} σ (Bonferroni, 5 % family-wise)"
+                f"p/z {y[i]:,.0f} psia is {abs(o.residual):,.0f} psia {side} the line through the "
+                f"used points, {abs(o.studentized):.1f} σ; the limit for {o.n_tested} surveys is "
+                f"{o.threshold:.1f} σ (Bonferroni, 5 % family-wise)"
             )
         out.append(
             PointStatus(
-                index=i,
+                index=i if labels is None else int(labels[i]),
                 status="used" if keep[i] else "outlier",
                 reason=reason,
                 residual_pz_psia=float(y[i] - fitted[i]),

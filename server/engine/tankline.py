@@ -29,7 +29,7 @@ from .stats import LinearFit, linearised_fit, weighted_least_squares
 #: Largest ce searched [1/psi]. Cumulative ce of overpressured rock can reach a few
 #: 1e-5/psi (Fetkovich et al. 1998); beyond 1e-4 the "rock" would be an aquifer.
 CE_SEARCH_MAX_PER_PSI = 1.0e-4
-_GN_ITERATIONS = 5
+_GN_ITERATIONS = 4
 
 
 @dataclass(frozen=True)
@@ -171,6 +171,27 @@ def _linearise(x, y, w, d, anchor, phi, bounds, at_bound) -> TankLineFit:
     return TankLineFit(names, theta, phi, a_map @ lin.cov @ a_map.T, a_map, phi0, lin, bounds, at_bound)
 
 
+def screen_design(x, y, w, d, *, anchor=None, ce=0.0):
+    """(design, offset) of the linear model an outlier screen fits to subsets of surveys.
+
+    With ce fixed the tank line is linear: design [1/f, Gp/f] (or [Gp/f] with the
+    anchored offset (pi/zi)/f). With ce fitted it is linearised at the fit through all
+    surveys (the tangent plane, including the ce column), so each subset fit is one
+    small least-squares solve.
+    """
+    x, y, w, d = (np.asarray(v, float) for v in (x, y, w, d))
+    if ce is not None:
+        f = 1.0 - ce * d
+        if anchor is None:
+            return np.column_stack([1.0 / f, x / f]), None
+        return (x / f)[:, None], anchor / f
+    fit = fit_tank_line(x, y, w, d, anchor=anchor, ce=None)
+    jac = _jacobian(fit.phi, x, d, fit.names)
+    k = fit.names.index("ce")
+    # tangent plane: y ~ fitted + J (theta - theta0) = J theta - J[:, ce] ce0 (fitted is linear in a, b)
+    return jac, -jac[:, k] * fit.phi[2]
+
+
 def predict_pz(phi, x, d):
     """p/z predicted by the tank line at cumulative gas x and pressure drop d [psia]."""
     a, b, ce = phi
@@ -194,17 +215,19 @@ def bootstrap_phi(fit: TankLineFit, x, y, w, d, anchor, *, samples: int, rng, sc
     resample's ce. The fit's outlier screening is not repeated inside the resamples.
     """
     x, y, w, d = (np.asarray(v, float) for v in (x, y, w, d))
-    u = modified_residuals(fit, scale)
-    n = x.size
-    idx = rng.integers(0, n, size=(samples, n))
-    ystar = fit.lin.fitted + u[idx] / np.sqrt(w)
+    e = modified_residuals(fit, scale) / np.sqrt(w)
+    idx = rng.integers(0, x.size, size=(samples, x.size), dtype=np.int32)
+    estar = e[idx]  # resampled residuals in p/z units, one resample per row
     lo, hi = fit.ce_bounds
-    if lo == hi:  # ce fixed: the least-squares estimate is linear in y
-        a, b, _ = _ab_given_ce(lo, x, ystar, w, d, anchor, with_rss=False)
-        ce = np.full(samples, lo)
-    else:
-        ce = np.clip(_gauss_newton_ce(fit, x, ystar, w, d), lo, hi)
-        a, b, _ = _ab_given_ce(ce, x, ystar, w, d, anchor, with_rss=False)
+    if lo == hi:
+        # ce fixed: the estimate is linear in y, theta* = theta + M e* with M = (X'WX)^-1 X'W
+        design = _jacobian(fit.phi, x, d, fit.names)
+        m = np.linalg.solve(design.T @ (design * w[:, None]), (design * w[:, None]).T)
+        theta = fit.theta + estar @ m.T
+        return theta @ fit.a_map.T + fit.phi0
+    ystar = fit.lin.fitted + estar
+    ce = np.clip(_gauss_newton_ce(fit, x, ystar, w, d), lo, hi)
+    a, b, _ = _ab_given_ce(ce, x, ystar, w, d, anchor, with_rss=False)
     return np.column_stack([a, b, ce])
 
 
@@ -219,9 +242,8 @@ def _gauss_newton_ce(fit: TankLineFit, x, ystar, w, d) -> np.ndarray:
         cols = {"a": 1.0 / f, "b": x / f, "ce": (a + b * x) * d / f**2}
         jac = np.stack([cols[nm] for nm in fit.names], axis=-1)
         r = ystar - (a + b * x) / f
-        jtwj = np.einsum("bni,n,bnj->bij", jac, w, jac)
-        jtwr = np.einsum("bni,n,bn->bi", jac, w, r)
-        theta = theta + np.linalg.solve(jtwj, jtwr[..., None])[..., 0]
+        jtw = (jac * w[:, None]).transpose(0, 2, 1)
+        theta = theta + np.linalg.solve(jtw @ jac, jtw @ r[..., None])[..., 0]
         k = fit.names.index("ce")
         theta[:, k] = np.clip(theta[:, k], lo, hi)
     return theta[:, fit.names.index("ce")]

@@ -163,7 +163,7 @@ PORTFOLIO: tuple[DemoField, ...] = (
         20.0,
         (85.0, 102.0, 122.0),
         ce_per_psi=14.3e-6,
-        settings={"overpressure_mode": "off"},
+        settings={"overpressure_mode": "fitted"},
     ),
     DemoField(
         "Fallowmere",
