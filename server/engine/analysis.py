@@ -123,7 +123,7 @@ def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldA
     low, high, range_kind = (
         (boot.p90, boot.p10, "P90-P10 of a residual bootstrap (80 % range)")
         if boot
-        else (ci.low, ci.high, f"{ci.method} {level} confidence interval")
+        else (ci.low, ci.high, f"{ci.method.capitalize()} {level} confidence interval")
     )
     notes.append(CAUTION)
     return FieldAnalysis(
