@@ -210,8 +210,8 @@ def bootstrap_phi(fit: TankLineFit, x, y, w, d, anchor, *, samples: int, rng, sc
 
     Each resample adds modified residuals, drawn with replacement and divided by
     sqrt(w), to the fitted p/z and refits. With ce fixed the refit is one matrix
-    product; with ce fitted it is a projected Gauss-Newton iteration from the fitted
-    values (ce kept inside its search bounds), finished by the exact (a, b) for the
+    product; with ce fitted it is a projected chord iteration from the fitted values
+    (ce kept inside its search bounds), finished by the exact (a, b) for the
     resample's ce. The fit's outlier screening is not repeated inside the resamples.
     """
     x, y, w, d = (np.asarray(v, float) for v in (x, y, w, d))
@@ -223,7 +223,7 @@ def bootstrap_phi(fit: TankLineFit, x, y, w, d, anchor, *, samples: int, rng, sc
         # ce fixed: the estimate is linear in y, theta* = theta + M e* with M = (X'WX)^-1 X'W
         design = _jacobian(fit.phi, x, d, fit.names)
         m = np.linalg.solve(design.T @ (design * w[:, None]), (design * w[:, None]).T)
-        theta = fit.theta + estar @ m.T
+        theta = fit.theta + estar @ np.ascontiguousarray(m.T)
         return theta @ fit.a_map.T + fit.phi0
     ystar = fit.lin.fitted + estar
     ce = np.clip(_gauss_newton_ce(fit, x, ystar, w, d), lo, hi)
@@ -232,18 +232,23 @@ def bootstrap_phi(fit: TankLineFit, x, y, w, d, anchor, *, samples: int, rng, sc
 
 
 def _gauss_newton_ce(fit: TankLineFit, x, ystar, w, d) -> np.ndarray:
-    """Vectorised projected Gauss-Newton over resamples; returns each resample's ce."""
+    """Each resample's ce by chord (simplified Gauss-Newton) steps from the fitted values.
+
+    The Jacobian is kept at the fit's solution, so every step for all resamples is one
+    matrix product; the model is nearly linear in ce (f = 1 - ce (pi - p) stays near 1),
+    so a few steps converge. Projected onto the search bounds after each step. The
+    chord's fixed point differs from each resample's exact least-squares ce by about
+    1 % of the bootstrap spread (checked against exact refits in the tests), well inside
+    the resampling error of a percentile (about 5 % of the spread at 1000 resamples).
+    """
     lo, hi = fit.ce_bounds
+    jac = _jacobian(fit.phi, x, d, fit.names)
+    mt = np.ascontiguousarray(np.linalg.solve(jac.T @ (jac * w[:, None]), (jac * w[:, None]).T).T)
+    k = fit.names.index("ce")
     theta = np.broadcast_to(fit.theta, (ystar.shape[0], fit.theta.size)).copy()
     for _ in range(_GN_ITERATIONS):
         phi = theta @ fit.a_map.T + fit.phi0
         a, b, ce = phi[:, :1], phi[:, 1:2], phi[:, 2:3]
-        f = 1.0 - ce * d
-        cols = {"a": 1.0 / f, "b": x / f, "ce": (a + b * x) * d / f**2}
-        jac = np.stack([cols[nm] for nm in fit.names], axis=-1)
-        r = ystar - (a + b * x) / f
-        jtw = (jac * w[:, None]).transpose(0, 2, 1)
-        theta = theta + np.linalg.solve(jtw @ jac, jtw @ r[..., None])[..., 0]
-        k = fit.names.index("ce")
+        theta += (ystar - (a + b * x) / (1.0 - ce * d)) @ mt
         theta[:, k] = np.clip(theta[:, k], lo, hi)
-    return theta[:, fit.names.index("ce")]
+    return theta[:, k]

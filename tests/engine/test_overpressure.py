@@ -186,3 +186,20 @@ def test_volumetric_data_put_ce_at_its_lower_bound():
         assert e.ce_at_bound == "lower" and e.ce_per_psi == 0.0
         assert any("no rock-and-water expansion support" in n for n in e.notes)
     assert e.ce_uncertainty_per_psi.ci_delta.low < 0.5e-6
+
+
+def test_fitted_ce_bootstrap_draws_match_exact_refits_of_the_same_resamples():
+    from server.engine.tankline import bootstrap_phi, fit_tank_line, modified_residuals
+
+    rng = np.random.default_rng(0)
+    w, d = np.ones(GP.size), PI - P
+    y = PZ + rng.normal(0, 15.0, GP.size)
+    fit = fit_tank_line(GP, y, w, d, ce=None)
+    phi = bootstrap_phi(fit, GP, y, w, d, None, samples=40, rng=np.random.default_rng(5), scale=1.0)
+    # the same resamples, refitted one by one with the full profile search
+    e = modified_residuals(fit, 1.0)
+    idx = np.random.default_rng(5).integers(0, GP.size, size=(40, GP.size), dtype=np.int32)
+    exact = np.array([fit_tank_line(GP, fit.lin.fitted + e[i], w, d, ce=None).phi for i in idx])
+    g, g_exact = -phi[:, 0] / phi[:, 1], -exact[:, 0] / exact[:, 1]
+    assert np.max(np.abs(g - g_exact)) < 0.03 * np.std(g_exact)
+    assert np.max(np.abs(phi[:, 2] - exact[:, 2])) < 0.03 * np.std(exact[:, 2])
