@@ -167,6 +167,9 @@ def _markers(name, pts, y_of, marker, corrected) -> dict:
 def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
     giip, intercept = pz["giip_bscf"], pz["intercept_psia"]
     band = pz["band"]
+    # p/z cannot go below zero: the band is drawn clipped there (the data keep the full band)
+    low = [max(v, 0.0) for v in band["low_psia"]]
+    high = [max(v, 0.0) for v in band["high_psia"]]
     level = f"{100 * band['level']:.0f} %"
     traces = [
         {
@@ -174,7 +177,7 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
             "mode": "lines",
             "name": f"{level} band of the line",
             "x": band["gp_bscf"],
-            "y": band["low_psia"],
+            "y": low,
             "line": {"width": 0},
             "showlegend": False,
             "hoverinfo": "skip",
@@ -184,7 +187,7 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
             "mode": "lines",
             "name": f"{level} confidence band of the line",
             "x": band["gp_bscf"],
-            "y": band["high_psia"],
+            "y": high,
             "line": {"width": 0},
             "fill": "tonexty",
             "fillcolor": BAND_COLOUR,

@@ -34,9 +34,10 @@ def test_points_by_well_set_aside_points_with_reasons_line_band_and_abandonment(
     assert line["x"] == [0.0, pz["giip_bscf"]] and line["y"] == [pz["intercept_psia"], 0.0]
     band = t["95 % confidence band of the line"]
     assert band["fill"] == "tonexty" and band["x"] == pz["band"]["gp_bscf"]
-    assert band["y"] == pz["band"]["high_psia"]
+    assert band["y"] == [max(v, 0.0) for v in pz["band"]["high_psia"]]  # p/z >= 0 on the chart
     lower = fig["data"][fig["data"].index(band) - 1]
-    assert lower["y"] == pz["band"]["low_psia"] and lower["showlegend"] is False
+    assert lower["y"] == [max(v, 0.0) for v in pz["band"]["low_psia"]] and lower["showlegend"] is False
+    assert min(pz["band"]["low_psia"]) < 0.0 and min(lower["y"]) == 0.0
     star = next(v for k, v in t.items() if k.startswith("abandonment"))
     assert star["x"] == [pz["eur_bscf"]] and star["y"] == [pz["abandonment_pz_psia"]]
     rng = next(v for k, v in t.items() if k.startswith("GIIP P90-P10"))
