@@ -27,15 +27,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import InputRangeError, InsufficientDataError
+from .outliers import linear_subset_fits, robust_outlier_screen
+from .pz_intervals import LineBand, Uncertainty, derived_ratios, line_band, ratio_uncertainty
 from .stats import (
     Interval,
-    Percentiles,
     RunsTest,
-    fieller_ratio_interval,
-    linear_subset_fits,
     p90_p50_p10,
-    ratio_delta_se,
-    robust_outlier_screen,
     runs_test,
     t_multiplier,
     t_quantile,
@@ -110,17 +107,6 @@ def recovery_factor_volumetric(pz_abandon_psia: float, pz_initial_psia: float) -
 
 
 @dataclass(frozen=True)
-class Uncertainty:
-    """How well one derived number is known. ``ci_*`` are confidence intervals at the
-    estimate's confidence level; ``bootstrap`` holds P90/P50/P10 (an 80 % range)."""
-
-    se: float
-    ci_delta: Interval
-    ci_fieller: Interval | None  # None: the data cannot bound the number at this level
-    bootstrap: Percentiles | None
-
-
-@dataclass(frozen=True)
 class PointStatus:
     """What the estimate did with one survey (``index`` as in PreparedData.points)."""
 
@@ -130,17 +116,6 @@ class PointStatus:
     residual_pz_psia: float | None  # observed minus the final line (p/z space)
     studentized: float | None  # the outlier test's statistic when it set the point aside
     corrected_pz_psia: float  # (p/z)[1 - ce (pi - p)]; equals p/z when ce = 0
-
-
-@dataclass(frozen=True)
-class LineBand:
-    """The fitted (corrected) p/z line with its pointwise confidence band."""
-
-    gp_bscf: np.ndarray
-    line_psia: np.ndarray
-    low_psia: np.ndarray
-    high_psia: np.ndarray
-    level: float
 
 
 @dataclass(frozen=True)
@@ -181,36 +156,6 @@ class PzEstimate:
     band: LineBand
     points: tuple[PointStatus, ...]
     notes: tuple[str, ...]
-
-
-# Affine maps of phi = (a, b, ce) -> (gradient, constant) for each ratio's numerator
-# and denominator: G = -a/b, EUR = (c - a)/b, RF = (a - c)/a with c = pz_a (1 - ce dpa).
-def _ratios(pz_a, dpa):
-    k = pz_a * dpa
-    return {
-        "giip": ((np.array([-1.0, 0, 0]), 0.0), (np.array([0, 1.0, 0]), 0.0)),
-        "eur": ((np.array([-1.0, 0, -k]), pz_a), (np.array([0, 1.0, 0]), 0.0)),
-        "rf": ((np.array([1.0, 0, k]), -pz_a), (np.array([1.0, 0, 0]), 0.0)),
-    }
-
-
-def _uncertainty(fit, num, den, t, level, phi_star, shift=0.0, unbounded_if_rising=True):
-    (gn, cn), (gd, cd) = num, den
-    n_val, d_val = gn @ fit.phi + cn, gd @ fit.phi + cd
-    cov = fit.phi_cov
-    vn, vd, cnd = gn @ cov @ gn, gd @ cov @ gd, gn @ cov @ gd
-    value = n_val / d_val
-    se = ratio_delta_se(n_val, d_val, vn, vd, cnd)
-    ci = Interval(value - t * se + shift, value + t * se + shift, "delta", level)
-    fieller = fieller_ratio_interval(n_val, d_val, vn, vd, cnd, t, level)
-    boot = None
-    if phi_star is not None:
-        ns, ds = phi_star @ gn + cn, phi_star @ gd + cd
-        samples = ns / ds
-        if unbounded_if_rising:  # a resample whose line does not fall has no finite volume
-            samples = np.where(phi_star[:, 1] < 0, samples, np.inf)
-        boot = p90_p50_p10(samples + shift, "residual bootstrap")
-    return value + shift, Uncertainty(float(se), ci, fieller.shifted(shift) if fieller else None, boot)
 
 
 def estimate_pz(
@@ -261,7 +206,7 @@ def estimate_pz(
     random_seed : int
         Seed of the bootstrap: the same inputs always give the same numbers.
     screen_outliers : bool
-        Apply the outlier rule (:func:`.stats.robust_outlier_screen`).
+        Apply the outlier rule (:func:`.outliers.robust_outlier_screen`).
     groups : sequence of str, optional
         The well of each survey. Outliers are isolated bad readings: when the rule
         would set aside two or more surveys of one well, that well disagrees with the
@@ -341,11 +286,11 @@ def estimate_pz(
                 "the high case (P10) is unbounded."
             )
     pz_a = abandonment_pz_psia
-    r = _ratios(pz_a, abandonment_pressure_drop_psi)
-    giip, giip_u = _uncertainty(fit, *r["giip"], t, level, phi_star)
-    eur, eur_u = _uncertainty(fit, *r["eur"], t, level, phi_star)
-    rem, rem_u = _uncertainty(fit, *r["eur"], t, level, phi_star, shift=-cumulative_gas_bscf)
-    rf, rf_u = _uncertainty(fit, *r["rf"], t, level, phi_star, unbounded_if_rising=False)
+    r = derived_ratios(pz_a, abandonment_pressure_drop_psi)
+    giip, giip_u = ratio_uncertainty(fit, *r["giip"], t, level, phi_star)
+    eur, eur_u = ratio_uncertainty(fit, *r["eur"], t, level, phi_star)
+    rem, rem_u = ratio_uncertainty(fit, *r["eur"], t, level, phi_star, shift=-cumulative_gas_bscf)
+    rf, rf_u = ratio_uncertainty(fit, *r["rf"], t, level, phi_star, unbounded_if_rising=False)
     if anchored and ce_per_psi is not None:
         notes.append("Anchored at pi/zi with ce fixed: the recovery factor is set by pi/zi and pa/za alone.")
     ce_u = None
@@ -397,7 +342,7 @@ def estimate_pz(
         depletion_frac=_depletion(fit, x[keep]),
         bootstrap_declining_frac=declining,
         residual_runs=runs_test(fit.lin.residual[np.argsort(x[keep], kind="stable")]),
-        band=_band(fit, giip_u, eur, t, level),
+        band=line_band(fit, giip_u, eur, t, level),
         points=points,
         notes=tuple(notes),
     )
@@ -511,18 +456,6 @@ def _point_statuses(fit, x, y, d, keep, outliers, labels) -> tuple[PointStatus, 
             )
         )
     return tuple(out)
-
-
-def _band(fit: TankLineFit, giip_u: Uncertainty, eur, t, level) -> LineBand:
-    a, b, _ = fit.phi
-    giip = -a / b
-    hi = giip_u.ci_fieller.high if giip_u.ci_fieller else 1.5 * giip
-    gp = np.linspace(0.0, max(min(hi, 3.0 * giip), giip, eur), 61)
-    c = fit.phi_cov
-    var = c[0, 0] + 2 * gp * c[0, 1] + gp**2 * c[1, 1]
-    line = a + b * gp
-    half = t * np.sqrt(np.maximum(var, 0.0))
-    return LineBand(gp, line, line - half, line + half, level)
 
 
 def method_key(weighted, anchored, mode) -> str:

@@ -1,4 +1,4 @@
-"""Shared statistics helpers (server/engine/stats.py) against independent computations:
+"""Shared statistics helpers (server/engine/stats.py, outliers.py) against independent computations:
 numpy's polyfit, brute-force refits without each point, grid searches, exact enumeration.
 """
 
@@ -8,14 +8,12 @@ import numpy as np
 import pytest
 from scipy import stats as st
 
+from server.engine.outliers import SubsetFit, externally_studentized, robust_outlier_screen
 from server.engine.stats import (
-    SubsetFit,
-    externally_studentized,
     fieller_ratio_interval,
     p90_p50_p10,
     percentiles_with_inf,
     ratio_delta_se,
-    robust_outlier_screen,
     runs_test,
     t_multiplier,
     weighted_least_squares,
