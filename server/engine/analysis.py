@@ -10,6 +10,8 @@ dataclasses that the services store as JSON with a summary in columns.
 from __future__ import annotations
 
 import dataclasses
+import datetime as dt
+import math
 from dataclasses import dataclass, field
 
 from . import ENGINE_VERSION
@@ -125,6 +127,9 @@ def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldA
         if boot
         else (ci.low, ci.high, f"{ci.method.capitalize()} {level} confidence interval")
     )
+    if not math.isfinite(high):  # resamples whose line does not fall: no upper bound
+        high = None
+        range_kind += "; the high case is unbounded"
     notes.append(CAUTION)
     return FieldAnalysis(
         status="ok",
@@ -156,6 +161,14 @@ def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str)
     engineer's exclusions keep their reason; outliers carry the rule's reason.
     """
     used = [p for p in prepared.points if p.included]
+    for p in used:
+        if not (math.isfinite(p.pz_psia) and math.isfinite(p.gp_bscf) and math.isfinite(p.p_datum_psia)):
+            day = dt.date(1970, 1, 1) + dt.timedelta(days=round(p.t_days))
+            raise InputRangeError(
+                f"survey of well {p.well or '?'} on {day.isoformat()} (row {p.index + 1} of the surveys): "
+                f"p/z {p.pz_psia}, Gp {p.gp_bscf} Bscf, datum pressure {p.p_datum_psia} psia "
+                "are not all finite"
+            )
     pi = prepared.initial_pz_psia * prepared.initial_z
     pa = prepared.abandonment_pz_psia * prepared.abandonment_z
     ce = {"off": 0.0, "given": choices.effective_compressibility_per_psi, "fitted": None}[mode]

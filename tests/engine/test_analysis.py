@@ -102,3 +102,29 @@ def test_analyse_prepared_is_the_same_as_analyse_field(base):
     a = analyse_field(base)
     b = analyse_prepared(prepare(base), AnalysisChoices())
     assert a.giip_best_bscf == b.giip_best_bscf and a.giip_low_bscf == b.giip_low_bscf
+
+
+def test_a_non_finite_point_is_named(base):
+    prepared = prepare(base)
+    bad = dataclasses.replace(prepared.points[2], pz_psia=float("nan"))
+    broken = dataclasses.replace(prepared, points=prepared.points[:2] + (bad,) + prepared.points[3:])
+    named = r"survey of well W-1 on \d{4}-\d\d-\d\d \(row 3 of the surveys\)"
+    with pytest.raises(InputRangeError, match=named):
+        analyse_prepared(broken, AnalysisChoices())
+
+
+def test_an_unbounded_high_case_is_stored_as_none():
+    # A decline significant only at a low confidence level (60 %): a fifth of the resamples
+    # do not fall, so P10 has no upper bound (at 95 % this field would be refused).
+    inputs, _ = history_inputs(
+        seed=26,
+        months=36,
+        survey_every_months=6,
+        rate_mscf_d=40000.0,
+        noise_psi=400.0,
+        choices=AnalysisChoices(confidence_level=0.6),
+    )
+    a = analyse_field(inputs)
+    assert a.status == "ok" and a.pz.bootstrap_declining_frac < 0.9
+    assert a.giip_high_bscf is None and a.giip_range_kind.endswith("the high case is unbounded")
+    assert any("P10) is unbounded" in n for n in a.notes)
