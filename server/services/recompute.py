@@ -110,7 +110,13 @@ def choices_from_settings(settings: FieldAnalysisSettings | None) -> AnalysisCho
     )
 
 
-_OPTION_KEYS = {"pseudo_critical_method", "weighting", "confidence_level", "bootstrap_samples"}
+_OPTION_KEYS = {
+    "pseudo_critical_method",
+    "weighting",
+    "confidence_level",
+    "bootstrap_samples",
+    "water_vapour_correction",
+}
 
 
 def current_estimate(session: Session, field_id: int) -> Estimate | None:
