@@ -5,6 +5,17 @@ from __future__ import annotations
 import numpy as np
 
 
+def production_start_t_days(period_end_t_days) -> float:
+    """Start of the first production period: one period length before its end.
+
+    The first period is taken as long as the second (30.4375 days when there is only one).
+    """
+    ends = np.asarray(period_end_t_days, float)
+    if ends.size == 0:
+        raise ValueError("no production periods")
+    return float(ends[0] - (ends[1] - ends[0] if ends.size > 1 else 30.4375))
+
+
 def cumulative_at_times(t_days, period_end_t_days, period_volume):
     """Cumulative volume at given times from per-period volumes.
 
@@ -28,7 +39,6 @@ def cumulative_at_times(t_days, period_end_t_days, period_volume):
         return np.zeros_like(t)
     if np.any(np.diff(ends) <= 0):
         raise ValueError("production periods must be in ascending order without repeats")
-    first_start = ends[0] - (ends[1] - ends[0] if ends.size > 1 else 30.4375)
-    knots_t = np.concatenate([[first_start], ends])
+    knots_t = np.concatenate([[production_start_t_days(ends)], ends])
     knots_v = np.concatenate([[0.0], np.cumsum(vol)])
     return np.interp(t, knots_t, knots_v, left=0.0, right=knots_v[-1])
