@@ -331,8 +331,13 @@ def influx_van_everdingen_hurst(
         and how W_D is computed ("laplace", "edwardson").
     """
     t, p = _check_history(t_days, p_psia)
-    w = veh_superposition_matrix(t, td_per_day, geometry, red, method)
-    return u_rb_per_psi * (w @ step_pressure_drops(initial_pressure_psia, p))
+    drops = step_pressure_drops(initial_pressure_psia, p)
+    dt = _uniform_step_days(t)
+    if dt is not None:  # O(N) memory on uniform grids
+        return u_rb_per_psi * causal_convolution(
+            veh_kernel_column(dt, t.size, td_per_day, geometry, red, method), drops
+        )
+    return u_rb_per_psi * (veh_superposition_matrix(t, td_per_day, geometry, red, method) @ drops)
 
 
 def fetkovich_matrix(t_days, ct_wi_rb_per_psi: float, decay_per_day: float) -> np.ndarray:
@@ -379,8 +384,12 @@ def influx_fetkovich(
     t, p = _check_history(t_days, p_psia)
     _positive(wei_rb=wei_rb, j_rb_per_day_psi=j_rb_per_day_psi, initial_pressure_psia=initial_pressure_psia)
     ct_wi = wei_rb / initial_pressure_psia
-    k = fetkovich_matrix(t, ct_wi, j_rb_per_day_psi / ct_wi)
-    return k @ step_average_pressure_drops(initial_pressure_psia, p)
+    decay = j_rb_per_day_psi / ct_wi
+    drops = step_average_pressure_drops(initial_pressure_psia, p)
+    dt = _uniform_step_days(t)
+    if dt is not None:  # O(N) memory on uniform grids
+        return causal_convolution(fetkovich_kernel_column(dt, t.size, ct_wi, decay), drops)
+    return fetkovich_matrix(t, ct_wi, decay) @ drops
 
 
 def influx_pot(p_psia, *, initial_pressure_psia: float, ct_wi_rb_per_psi: float):
