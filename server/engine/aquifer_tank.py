@@ -35,8 +35,7 @@ MIN_STEPS = 24
 #: ...and at most this many (longer histories get longer steps).
 MAX_STEPS = 480
 _NEWTON_TOL_PSI = 1e-7
-_NEWTON_MAX_ITER = 40
-REFRESH = 4
+_NEWTON_MAX_ITER = 30
 
 
 class PzTable:
@@ -213,19 +212,18 @@ class TankSolver:
         return jac
 
     def solve(self, g_scf, pi, kernel_column, p_start=None) -> TankState:
-        """Newton (chord) iteration on the whole pressure history."""
+        """Newton's method on the whole pressure history (the Jacobian is refreshed every step:
+        with a strong aquifer a frozen one overshoots)."""
         g, tab = self.grid, self.table
         m = dwe_dp_column(kernel_column, self.influx.bands)
         if p_start is None:  # the volumetric history
             p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
         p = np.clip(np.asarray(p_start, float), tab.p[0], tab.p[-1])
         converged = False
-        jac = None
-        for it in range(_NEWTON_MAX_ITER):
+        for _ in range(_NEWTON_MAX_ITER):
             we = self.influx_at(p, pi, kernel_column)
             r = self.residual(p, we, g_scf, pi)
-            if jac is None or it % REFRESH == 0:  # refresh the Jacobian now and then (chord steps between)
-                jac = self.jacobian_p(p, we, g_scf, pi, m)
+            jac = self.jacobian_p(p, we, g_scf, pi, m)
             step = solve_triangular(jac, -r, lower=True, check_finite=False)
             if not np.all(np.isfinite(step)):
                 break

@@ -10,9 +10,10 @@ time constant (and r_eD) (:func:`.havlena_odeh.havlena_odeh_scan`).
 
 Parameters θ = [ln G, p_i/p_i,given (unless anchored), s/s_ref, ln time constant], all of
 order one, with s the aquifer strength [rb/psi] and s_ref the gas pore volume per psi of
-initial pressure. The Jacobian is exact to first order: dp/dθ = −(∂R/∂p)⁻¹ ∂R/∂θ
-(implicit function theorem, one triangular solve), with the partial derivatives at fixed
-pressures taken by forward differences.
+initial pressure; models with a time constant use ln(s/s_ref), because strength and time
+constant trade off along a valley that is nearly straight on log scales. The Jacobian is
+exact to first order: dp/dθ = −(∂R/∂p)⁻¹ ∂R/∂θ (implicit function theorem, one triangular
+solve), with the partial derivatives at fixed pressures taken by forward differences.
 
 Uncertainty: covariance s² (JᵀJ)⁻¹ at the optimum, s² = RSS/(n − k), carried to the
 reported parameters by the delta method; GIIP's interval is taken on ln G (so it stays
@@ -47,7 +48,8 @@ from .prepare import PreparedData
 MAX_CONDITION = 1e6
 #: |correlation| above which two parameters are called not separately identifiable (issue 4).
 MAX_ABS_CORRELATION = 0.98
-#: Fitted influx below this fraction of the gas pore volume is called negligible.
+#: Fitted influx below this fraction of the gas pore volume (or below two standard errors)
+#: is reported as no significant support.
 NEGLIGIBLE_INFLUX_FRAC = 0.005
 #: Outer-radius ratios scanned for the van Everdingen-Hurst radial aquifer (None: infinite).
 VEH_RED_GRID = (None, 10.0, 5.0, 3.0, 2.0)
@@ -76,8 +78,14 @@ class _Problem:
         """(G [scf], p_i [psia], strength [rb/psi], time constant [1/day] or None)."""
         pi = self.grid.initial_pressure_psia * (float(theta[1]) if self.fit_pi else 1.0)
         i = self.i_strength
-        rate = float(np.exp(theta[i + 1])) if self.spec.has_rate else None
-        return float(np.exp(theta[0])) * 1e9, pi, float(theta[i]) * self.s_ref, rate
+        if self.spec.has_rate:  # log scales: strength and time constant trade off along a valley
+            return (
+                float(np.exp(theta[0])) * 1e9,
+                pi,
+                float(np.exp(theta[i])) * self.s_ref,
+                float(np.exp(theta[i + 1])),
+            )
+        return float(np.exp(theta[0])) * 1e9, pi, float(theta[i]) * self.s_ref, None
 
     def kernel(self, theta):
         g, pi, strength, rate = self.unpack(theta)
@@ -108,6 +116,8 @@ class _Problem:
         jac_p = solver.jacobian_p(st.p_psia, st.we_rb, g0, pi0, st.dwe_dp_column)
         steps = 1e-7 * np.maximum(np.abs(theta), 1.0)
         jac = np.empty((y.size, theta.size))
+        frac0 = st.we_rb[-1] / solver.gas_pore_volume_rb(g0, pi0)
+        self.influx_frac_gradient = np.empty(theta.size)
         for j in range(theta.size):
             th = theta.copy()
             th[j] += steps[j]
@@ -119,6 +129,9 @@ class _Problem:
             )  # dp/dθ_j x step
             we_total = we + causal_convolution(st.dwe_dp_column, dp)
             jac[:, j] = (solver.observe(we_total, g, pi, st.p_psia + dp) - y) / steps[j]
+            self.influx_frac_gradient[j] = (we_total[-1] / solver.gas_pore_volume_rb(g, pi) - frac0) / steps[
+                j
+            ]
         return self.sqrt_w[:, None] * jac
 
 
@@ -138,9 +151,15 @@ def _start_and_bounds(inputs: FieldInputs, grid: TankGrid, spec: AquiferModelSpe
         lo.append(0.8)
         hi.append(1.25)
     # The maximum encroachable water s p_i stays below 10^4 gas pore volumes.
-    x0.append(min(start.strength_rb_per_psi / s_ref, 5e3))
-    lo.append(0.0)
-    hi.append(1e4)
+    s0 = min(start.strength_rb_per_psi / s_ref, 5e3)
+    if spec.has_rate:  # on a log scale, from 1e-8 gas pore volumes up
+        x0.append(np.log(max(s0, 1e-3)))
+        lo.append(np.log(1e-8))
+        hi.append(np.log(1e4))
+    else:
+        x0.append(s0)
+        lo.append(0.0)
+        hi.append(1e4)
     if spec.has_rate:
         x0.append(np.log(start.rate))
         lo.append(np.log(RATE_END_BOUNDS[0] / t_end))
@@ -179,7 +198,7 @@ def _reported(spec: AquiferModelSpec, problem: _Problem, theta):
         names.append("initial_pressure_psia")
         values.append(pi)
         rows.append(eye[1] * problem.grid.initial_pressure_psia)
-    ds = eye[i] * problem.s_ref
+    ds = eye[i] * (strength if spec.has_rate else problem.s_ref)  # d strength / dθ_i
     if spec.name == "aquifer_fetkovich":  # Fetkovich's own pair: Wei = c_t W_i p_i, J = λ c_t W_i
         d_pi = eye[1] * problem.grid.initial_pressure_psia if problem.fit_pi else 0.0
         names += ["wei_rb", "j_rb_per_day_psi"]
@@ -270,9 +289,14 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
     rss = float(resid_w @ resid_w)
     dof = max(n - k, 1)
     names, values, transform = _reported(spec, problem, theta)
-    se, corr, cond, has_dead = _covariance(jac, rss / dof, transform)
     g_scf, pi, _, _ = problem.unpack(theta)
     influx_frac = float(state.we_rb[-1] / problem.solver.gas_pore_volume_rb(g_scf, pi))
+    # The derived influx fraction rides along as a last row (its standard error by the delta method).
+    se_all, corr_all, cond, has_dead = _covariance(
+        jac, rss / dof, np.vstack([transform, problem.influx_frac_gradient])
+    )
+    se, corr = se_all[:-1], corr_all[:-1, :-1]
+    influx_se = float(se_all[-1])
     identifiable, notes = _identifiability_notes(
         spec, problem, result, names, corr, cond, has_dead, influx_frac
     )
@@ -282,13 +306,13 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
     elif not converged:  # in practice: wandering along a flat valley of the misfit
         notes.append(f"the fit did not converge ({result.message})")
     identifiable = identifiable and converged
-    if influx_frac < NEGLIGIBLE_INFLUX_FRAC:
+    if influx_frac < NEGLIGIBLE_INFLUX_FRAC or influx_frac < 2.0 * influx_se:
         notes.append(
-            f"negligible aquifer support: the fitted influx is {influx_frac:.2%} of the gas pore "
-            "volume by the end of the history"
+            f"no significant aquifer support: the fitted influx is {influx_frac:.2%} ± {influx_se:.2%} "
+            "of the gas pore volume by the end of the history"
         )
     params = dict(zip(names, (float(v) for v in values), strict=True))
-    params["influx_frac_of_gas_pv"] = influx_frac  # derived, at the end of the history
+    params["influx_frac_of_gas_pv"] = influx_frac  # derived: We / (G B_gi) at the end of the history
     if len(reds) > 1:
         if red is not None:
             params["red"] = float(red)
@@ -311,7 +335,10 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
         giip_low_bscf=float(g * np.exp(-tq * se_ln_g)) if finite else None,
         giip_high_bscf=float(g * np.exp(tq * se_ln_g)) if finite else None,
         params=params,
-        param_se=dict(zip(names, (float(v) for v in se), strict=True)),
+        param_se={
+            **dict(zip(names, (float(v) for v in se), strict=True)),
+            "influx_frac_of_gas_pv": influx_se,
+        },
         correlation=corr,
         identifiable=identifiable,
         converged=converged,

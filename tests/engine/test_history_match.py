@@ -96,7 +96,16 @@ def test_history_match_recovers_the_truth_without_noise():
     assert np.max(np.abs(fit.residual_pz_psia)) < 0.05
     assert fit.fitted_pz_psia.shape == (f.inputs.n_surveys,)
     assert fit.correlation.shape == (4, 4)
-    assert list(fit.param_se) == ["giip_bscf", "initial_pressure_psia", "u_rb_per_psi", "td_per_day"]
+    assert list(fit.param_se) == [
+        "giip_bscf",
+        "initial_pressure_psia",
+        "u_rb_per_psi",
+        "td_per_day",
+        "influx_frac_of_gas_pv",
+    ]
+    # The influx fraction We/(G Bgi) at the end agrees with the forward model's own.
+    gas_pv_rb = 100e9 * c72.BGI_RB_PER_MSCF / 1e3
+    assert fit.params["influx_frac_of_gas_pv"] == pytest.approx(f.history.we_rb[-1] / gas_pv_rb, rel=2e-3)
 
 
 def test_anchored_initial_pressure_drops_a_parameter():
