@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from server.engine import aquifer as aq
+from server.engine import aquifer_constants as ac
 from server.engine.aquifer_dimensionless import influx_table, wd_laplace
 from server.engine.errors import InputRangeError
 from server.engine.laplace import invert_talbot
@@ -20,7 +21,7 @@ from server.engine.laplace import invert_talbot
 
 def test_field_constants_check_21():
     # Check value 21: recomputed from SI definitions, 1e-4 relative.
-    per_hour, per_day, u_radial = aq.TD_CONSTANT_PER_HOUR, aq.TD_CONSTANT_PER_DAY, aq.U_CONSTANT_RADIAL
+    per_hour, per_day, u_radial = ac.TD_CONSTANT_PER_HOUR, ac.TD_CONSTANT_PER_DAY, ac.U_CONSTANT_RADIAL
     assert per_hour == pytest.approx(2.6368e-4, rel=1e-4)
     assert per_day == pytest.approx(6.3283e-3, rel=1e-4)
     assert u_radial == pytest.approx(1.11908, rel=1e-5)
@@ -29,7 +30,7 @@ def test_field_constants_check_21():
     assert per_day == pytest.approx(0.00634, rel=2e-3)
     assert u_radial == pytest.approx(1.119, rel=1e-4)
     # Dake eq. 9.9: linear U = 0.1781 w L h φ c_t; the darcy itself is 9.869233e-13 m2.
-    u_linear, darcy_m2, darcy_field = aq.U_CONSTANT_LINEAR, aq.M2_PER_DARCY, aq.DARCY_CONSTANT_BBL_PER_DAY
+    u_linear, darcy_m2, darcy_field = ac.U_CONSTANT_LINEAR, ac.M2_PER_DARCY, ac.DARCY_CONSTANT_BBL_PER_DAY
     assert u_linear == pytest.approx(0.1781, rel=1e-4)
     assert darcy_m2 == pytest.approx(9.869233e-13, rel=1e-7)
     # Field-unit Darcy constant 0.001127 and the radial PSS 0.00708 (from memory; §3.2 computes
@@ -38,39 +39,22 @@ def test_field_constants_check_21():
     assert 2 * np.pi * darcy_field == pytest.approx(0.00708, rel=1e-3)
 
 
+# The §7.2 aquifer rock and water: k 10 md, φ 0.2, μw 0.5 cP, ct 6e-6 1/psi, h 30 ft.
+ROCK_7_2 = dict(
+    k_md=10, porosity_frac=0.2, viscosity_cp=0.5, total_compressibility_per_psi=6e-6, thickness_ft=30
+)
+
+
 def test_section_7_2_aquifer_constants():
-    # §7.2: ro 4000 ft, k 10 md, φ 0.2, μw 0.5 cP, ct 6e-6 1/psi, h 30 ft, f = 1 ->
-    # tD/day = 0.0065920; U = 1.119 x 576 = 644.544 bbl/psi with Dake's rounded 1.119.
-    c = aq.veh_radial_constants(
-        k_md=10,
-        porosity_frac=0.2,
-        viscosity_cp=0.5,
-        total_compressibility_per_psi=6e-6,
-        thickness_ft=30,
-        reservoir_radius_ft=4000,
-    )
+    # §7.2: ro = 4000 ft, f = 1 -> tD/day = 0.0065920; U = 1.119 x 576 = 644.544 bbl/psi with
+    # Dake's rounded 1.119 (1.11908 x 576 with the SI constant).
+    c = ac.veh_radial_constants(**ROCK_7_2, reservoir_radius_ft=4000)
     assert c.td_per_day == pytest.approx(0.0065920, rel=1e-4)
     assert c.u_rb_per_psi == pytest.approx(1.11908 * 576.0, rel=1e-5)
     assert c.u_rb_per_psi == pytest.approx(644.544, rel=1e-4)
-    half = aq.veh_radial_constants(
-        k_md=10,
-        porosity_frac=0.2,
-        viscosity_cp=0.5,
-        total_compressibility_per_psi=6e-6,
-        thickness_ft=30,
-        reservoir_radius_ft=4000,
-        encroachment_angle_deg=180,
-    )
+    half = ac.veh_radial_constants(**ROCK_7_2, reservoir_radius_ft=4000, encroachment_angle_deg=180)
     assert half.u_rb_per_psi == pytest.approx(c.u_rb_per_psi / 2) and half.td_per_day == c.td_per_day
-    lin = aq.veh_linear_constants(
-        k_md=10,
-        porosity_frac=0.2,
-        viscosity_cp=0.5,
-        total_compressibility_per_psi=6e-6,
-        thickness_ft=30,
-        width_ft=5000,
-        length_ft=20000,
-    )
+    lin = ac.veh_linear_constants(**ROCK_7_2, width_ft=5000, length_ft=20000)
     assert lin.u_rb_per_psi == pytest.approx(0.178108 * 5000 * 20000 * 30 * 0.2 * 6e-6, rel=1e-5)
     assert lin.td_per_day == pytest.approx(0.0063283 * 10 / (0.2 * 0.5 * 6e-6 * 20000**2), rel=1e-4)
 
@@ -87,14 +71,14 @@ def test_fetkovich_veh_identity_check_22(red):
         thickness_ft=40.0,
         reservoir_radius_ft=3000.0,
     )
-    veh = aq.veh_radial_constants(**rock)
-    fk = aq.fetkovich_radial_constants(**rock, aquifer_radius_ft=red * 3000.0, initial_pressure_psia=4500.0)
+    veh = ac.veh_radial_constants(**rock)
+    fk = ac.fetkovich_radial_constants(**rock, aquifer_radius_ft=red * 3000.0, initial_pressure_psia=4500.0)
     dt_days = 30.0
     lhs = fk.j_rb_per_day_psi * 4500.0 * dt_days / fk.wei_rb
     rhs = 2 * veh.td_per_day * dt_days / ((red**2 - 1) * (log(red) - 0.75))
     assert lhs == pytest.approx(rhs, rel=1e-10)
     # c_t W_i = U (reD² − 1)/2 (the vEH plateau), so the conversion function agrees too.
-    conv = aq.fetkovich_from_veh_radial(veh.u_rb_per_psi, veh.td_per_day, red, 4500.0)
+    conv = ac.fetkovich_from_veh_radial(veh.u_rb_per_psi, veh.td_per_day, red, 4500.0)
     assert conv.wei_rb == pytest.approx(fk.wei_rb, rel=1e-12)
     assert conv.j_rb_per_day_psi == pytest.approx(fk.j_rb_per_day_psi, rel=1e-12)
 
@@ -128,7 +112,7 @@ def test_fetkovich_against_bounded_veh_on_a_ramp_section_3_2():
     # reD = 5, Fetkovich on the same (U, tD) parametrisation (check value 22) with ΔtD = 1,
     # against the exact vEH influx: −43 % at tD = 1, −8.5 % at 5, +1.1 % at 10, +4.7 % at 20,
     # +3.2 % at 50 (printed to 2 digits).
-    fk = aq.fetkovich_from_veh_radial(1000.0, 1.0, 5.0, 5000.0)
+    fk = ac.fetkovich_from_veh_radial(1000.0, 1.0, 5.0, 5000.0)
     t = np.arange(1.0, 51.0)
     we = aq.influx_fetkovich(
         t,
@@ -243,16 +227,9 @@ def test_bad_inputs_raise():
     with pytest.raises(InputRangeError, match="wei_rb"):
         aq.influx_fetkovich([1.0], [3900.0], initial_pressure_psia=4000.0, wei_rb=0.0, j_rb_per_day_psi=1.0)
     with pytest.raises(InputRangeError, match="ln\\(r_eD\\) > 3/4"):
-        aq.fetkovich_from_veh_radial(100.0, 0.01, 2.0, 4000.0)
+        ac.fetkovich_from_veh_radial(100.0, 0.01, 2.0, 4000.0)
     with pytest.raises(InputRangeError, match="k_md"):
-        aq.veh_radial_constants(
-            k_md=-1,
-            porosity_frac=0.2,
-            viscosity_cp=0.5,
-            total_compressibility_per_psi=6e-6,
-            thickness_ft=30,
-            reservoir_radius_ft=4000,
-        )
+        ac.veh_radial_constants(**{**ROCK_7_2, "k_md": -1.0}, reservoir_radius_ft=4000)
     with pytest.raises(ValueError, match="unknown W_D method"):
         aq.dimensionless_influx(1.0, method="table")
     with pytest.raises(ValueError, match="Edwardson"):
