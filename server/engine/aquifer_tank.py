@@ -24,10 +24,13 @@ from scipy.linalg import solve_triangular
 from .aquifer import causal_convolution, lower_toeplitz
 from .errors import InsufficientDataError
 from .inputs import FieldInputs
-from .mbal import DEFAULT_BW_RB_PER_STB, field_effective_compressibility_per_psi
-from .prepare import PreparedData
+from .mbal import DEFAULT_BW_RB_PER_STB, field_effective_compressibility_per_psi, produced_water_is_liquid
+from .prepare import (
+    PreparedData,
+    _z_function,  # noqa: PLC2701 - the prepared points' own z source
+)
 from .production import cumulative_at_times, production_start_t_days
-from .pvt import bg_rcf_per_scf, z_factor
+from .pvt import bg_rcf_per_scf
 from .units import FT3_PER_BBL, StandardConditions
 
 #: Grid steps: about one per production period, at least this many...
@@ -39,13 +42,14 @@ _NEWTON_MAX_ITER = 30
 
 
 class PzTable:
-    """p/z as a function of p at reservoir temperature, from :func:`.pvt.z_factor`."""
+    """p/z as a function of p at reservoir temperature, from the field's own z source."""
 
-    def __init__(self, t_degF, fluid, z_method, p_max_psia, conditions):
-        # z on a coarse grid, then a cubic spline onto the fine one: z(p) is smooth, and the
-        # correlation is the costly part (spline error < 1e-7 in z, tested).
+    def __init__(self, z_of_p, t_degF, p_max_psia, conditions):
+        # z on a coarse grid, then a cubic spline onto the fine one: z(p) is smooth and the
+        # z source is the costly part (spline error below 1e-7 in z for a correlation, ~4e-6 for a
+        # lab table whose monotone cubic has curvature kinks at its nodes).
         coarse = np.linspace(14.7, p_max_psia, 161)
-        spline = CubicSpline(coarse, np.asarray(z_factor(coarse, t_degF, fluid, z_method)))
+        spline = CubicSpline(coarse, np.asarray(z_of_p(coarse), float))
         self.p = np.linspace(14.7, p_max_psia, 3001)
         self.z = spline(self.p)
         self.phi = self.p / self.z
@@ -120,13 +124,15 @@ def tank_grid(
     water = inputs.production_water_stb
     wp_grid = np.zeros(n)
     wp_obs = np.zeros(obs_abs.size)
-    if water is not None:
+    if produced_water_is_liquid(inputs):
         wp_grid = cumulative_at_times(t0 + t, ends, water) * bw_rb_per_stb
         wp_obs = cumulative_at_times(obs_abs, ends, water) * bw_rb_per_stb
+    # The same z as the prepared points: the lab table or the correlation for the (well-stream)
+    # gas that prepare used. prepare has no public name for it yet.
+    z_of_p, _, _ = _z_function(inputs, prepared.fluid or inputs.fluid, [])
     table = PzTable(
+        z_of_p,
         inputs.reservoir_temperature_degF,
-        inputs.fluid,
-        inputs.choices.z_method,
         1.35 * inputs.initial_pressure_psia,
         inputs.standard_conditions,
     )

@@ -30,8 +30,8 @@ from .errors import InputRangeError
 from .inputs import FieldInputs
 from .prepare import PreparedData
 from .production import cumulative_at_times
-from .pvt import GasFluid, bg_rcf_per_scf, z_factor
-from .units import FT3_PER_BBL, OILFIELD_60F, StandardConditions
+from .pvt import GasFluid, bg_rb_per_mscf, z_factor
+from .units import OILFIELD_60F, StandardConditions
 
 #: Assumed water formation volume factor when none is given [rb/stb]; common practice
 #: for produced and influx water (its effect on F is small next to G_p B_g).
@@ -54,11 +54,6 @@ COLE_RULE = (
     f"{COLE_MATERIAL_CHANGE_FRAC:.0%} across the G_p range; 'flat': otherwise, when the "
     f"95 % interval of that change lies within ±{COLE_FLAT_BAND_FRAC:.0%}; else 'undetermined'"
 )
-
-
-def bg_rb_per_mscf(p_psia, t_degF, z, conditions: StandardConditions = OILFIELD_60F):
-    """B_g in reservoir barrels per Mscf, from :func:`.pvt.bg_rcf_per_scf`."""
-    return bg_rcf_per_scf(p_psia, t_degF, z, conditions) * 1000.0 / FT3_PER_BBL
 
 
 def underground_withdrawal_rb(gp_bscf, bg_rb_per_mscf_, wp_stb=0.0, bw_rb_per_stb=DEFAULT_BW_RB_PER_STB):
@@ -273,6 +268,11 @@ def field_effective_compressibility_per_psi(inputs: FieldInputs) -> float:
     return 0.0
 
 
+def produced_water_is_liquid(inputs: FieldInputs) -> bool:
+    """True when produced water belongs in F as W_p B_w (not already counted as gas by prepare)."""
+    return inputs.production_water_stb is not None and not inputs.choices.water_vapour_correction
+
+
 def field_havlena_odeh_terms(
     inputs: FieldInputs, prepared: PreparedData, *, bw_rb_per_stb: float = DEFAULT_BW_RB_PER_STB
 ) -> HavlenaOdehTerms:
@@ -280,7 +280,7 @@ def field_havlena_odeh_terms(
     pts = [p for p in prepared.points if p.included]
     t = np.array([p.t_days for p in pts])
     wp = np.zeros(t.size)
-    if inputs.production_water_stb is not None and t.size:
+    if produced_water_is_liquid(inputs) and t.size:
         wp = cumulative_at_times(t, prepared.production_end_t_days, inputs.production_water_stb)
     return havlena_odeh_terms(
         np.array([p.p_datum_psia for p in pts]),

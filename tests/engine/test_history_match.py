@@ -13,11 +13,13 @@ import numpy as np
 import pytest
 
 from server.engine.aquifer import influx_van_everdingen_hurst
+from server.engine.aquifer_tank import tank_grid
 from server.engine.errors import InsufficientDataError
 from server.engine.havlena_odeh import havlena_odeh_aquifer_fit
 from server.engine.history_match import fit_aquifer_model, fit_aquifer_models
-from server.engine.inputs import AnalysisChoices
+from server.engine.inputs import AnalysisChoices, LabTable
 from server.engine.mbal import havlena_odeh_terms
+from server.engine.prepare import prepare
 from server.engine.pvt import z_factor
 from server.engine.pz import fit_pz_line
 from server.synthetic.aquifer import VehAquifer, simulate_veh
@@ -126,3 +128,21 @@ def test_too_few_surveys():
     assert [m.name for m in fits] == ["aquifer_pot"]  # 5 surveys: 3 parameters and 2 residual dof, not 4
     with pytest.raises(ValueError, match="unknown aquifer model"):
         fit_aquifer_model(f.inputs, f.prepared, "aquifer_schilthuis")
+
+
+def test_forward_model_uses_the_prepared_z_source():
+    # With a laboratory z table chosen, the tank's p/z(p) must be the one the surveys were
+    # converted with (else the fit would chase a z mismatch). An invented table: DAK x (1 + 2 % p/pi).
+    f = synthetic_field(veh=VehAquifer(c72.U_RB_PER_PSI, c72.TD_PER_DAY), sigma_psia=5.0)
+    p_lab = np.linspace(500.0, 6000.0, 23)
+    z_lab = z_factor(p_lab, c72.T_DEGF, c72.FLUID) * (1 + 0.02 * p_lab / 5000.0)
+    inputs = replace(f.inputs, lab_table=LabTable(pressure_psia=p_lab, z_factor=z_lab))
+    prepared = prepare(inputs)
+    grid = tank_grid(inputs, prepared)
+    p = np.array([pt.p_datum_psia for pt in prepared.points])
+    z_points = np.array([pt.z_factor for pt in prepared.points])
+    assert not np.allclose(z_points, z_factor(p, c72.T_DEGF, c72.FLUID), rtol=1e-3)  # the table is in use
+    # The tank tabulates z at 161 pressures and splines them; the lab table's monotone cubic
+    # has kinks in curvature at its nodes, so agreement is to ~4e-6 (0.02 psia of p/z).
+    assert np.interp(p, grid.table.p, grid.table.z) == pytest.approx(z_points, rel=1e-5)
+    assert grid.obs_pz_psia == pytest.approx(p / z_points)

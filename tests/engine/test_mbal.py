@@ -7,20 +7,21 @@ Trend rules (2 % depletion cut-off, 1 % materiality, 5 % significance) are commo
 stated in server/engine/mbal.py.
 """
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 
 from server.engine.errors import InputRangeError
 from server.engine.mbal import (
     COLE_MIN_DEPLETION_FRAC,
-    bg_rb_per_mscf,
     cole_plot,
     field_cole_plots,
     field_havlena_odeh_terms,
     havlena_odeh_terms,
     underground_withdrawal_rb,
 )
-from server.engine.pvt import GasFluid
+from server.engine.pvt import GasFluid, bg_rb_per_mscf
 from server.synthetic.aquifer import VehAquifer
 from server.synthetic.tank import PotAquifer, TankSpec, simulate
 from tests.engine import section_7_2 as c72
@@ -158,13 +159,14 @@ def test_early_points_are_shown_but_not_used():
 def test_field_terms_include_produced_water():
     f = synthetic_field(sigma_psia=0.0)
     water = np.full(f.inputs.production_gas_mscf.size, 500.0)  # stb per month
-    from dataclasses import replace
-
     inputs = replace(f.inputs, production_water_stb=water)
     dry = field_havlena_odeh_terms(f.inputs, f.prepared)
     wet = field_havlena_odeh_terms(inputs, f.prepared)
     assert wet.f_rb[-1] - dry.f_rb[-1] == pytest.approx(500.0 * water.size * 1.0, rel=0.01)
     assert wet.f_rb[0] == dry.f_rb[0]  # the initial survey: nothing produced yet
+    # Water the engineer declares condensed vapour is already gas in G_p: not again in F.
+    vapour = replace(inputs, choices=replace(inputs.choices, water_vapour_correction=True))
+    assert field_havlena_odeh_terms(vapour, f.prepared).f_rb == pytest.approx(dry.f_rb)
 
 
 def test_bad_input_raises():
