@@ -130,14 +130,8 @@ def observed_pressure_history(grid: TankGrid) -> np.ndarray:
     return tab.p_of_pz(np.interp(grid.t_days, knots_t, knots_pz))
 
 
-def havlena_odeh_scan(grid: TankGrid, spec: AquiferModelSpec, rates, reds=(None,)) -> ScanStart:
-    """The best line F/E_t = G + s S/E_t over time constants (and r_eD), on the observed pressures.
-
-    S is computed from the surveys' pressures interpolated on the grid; F and E_t at the
-    surveys; weights ∝ survey weight × (E_t/B_g)², and surveys with less than
-    :data:`.mbal.COLE_MIN_DEPLETION_FRAC` depletion left out. Lines with a positive slope
-    are preferred, then the smallest weighted residual.
-    """
+def _observed_terms(grid: TankGrid):
+    """Havlena-Odeh terms at the surveys, the points a line may use, and their weights."""
     tab = grid.table
     pi = grid.initial_pressure_psia
     p_obs = tab.p_of_pz(grid.obs_pz_psia)
@@ -157,16 +151,34 @@ def havlena_odeh_scan(grid: TankGrid, spec: AquiferModelSpec, rates, reds=(None,
     ok = (grid.obs_t_days > 0) & (terms.depletion_frac >= COLE_MIN_DEPLETION_FRAC) & (et > 0)
     if np.sum(ok) < 3:
         raise InsufficientDataError("fewer than 3 depleted surveys: no Havlena-Odeh line")
-    y = terms.f_rb[ok] / et[ok]
-    w = grid.obs_weight[ok] * (et[ok] / terms.bg_rb_per_mscf[ok]) ** 2
-    drops = spec.influx.drops(pi, observed_pressure_history(grid))
-    interp = grid.obs_interp[ok, 1:]  # S(t_0) = 0
+    w = np.where(ok, grid.obs_weight * (np.where(ok, et, 1.0) / terms.bg_rb_per_mscf) ** 2, 0.0)
+    return terms, ok, w
+
+
+def _aquifer_functions(grid: TankGrid, spec: AquiferModelSpec, rates, red) -> np.ndarray:
+    """S at the surveys (one row per time constant), from the observed pressure history."""
+    drops = spec.influx.drops(grid.initial_pressure_psia, observed_pressure_history(grid))
+    cols = spec.unit_columns(float(grid.t_days[0]), grid.n_steps, [r or 0.0 for r in rates], red)
+    s_grid = signal.fftconvolve(cols, drops[None, :], axes=1)[:, : grid.n_steps]
+    return s_grid @ grid.obs_interp[:, 1:].T  # S(t_0) = 0
+
+
+def havlena_odeh_scan(grid: TankGrid, spec: AquiferModelSpec, rates, reds=(None,)) -> ScanStart:
+    """The best line F/E_t = G + s S/E_t over time constants (and r_eD), on the observed pressures.
+
+    S is computed from the surveys' pressures interpolated on the grid; F and E_t at the
+    surveys; weights ∝ survey weight × (E_t/B_g)², and surveys with less than
+    :data:`.mbal.COLE_MIN_DEPLETION_FRAC` depletion left out. Lines with a positive slope
+    are preferred, then the smallest weighted residual.
+    """
+    terms, ok, w = _observed_terms(grid)
+    et = terms.et_rb_per_mscf[ok]
+    y = terms.f_rb[ok] / et
     rates = [None] if not spec.has_rate else list(rates)
     best = None
     for red in reds:
-        cols = spec.unit_columns(float(grid.t_days[0]), grid.n_steps, [r or 0.0 for r in rates], red)
-        s_grid = signal.fftconvolve(cols, drops[None, :], axes=1)[:, : grid.n_steps]
-        a, b, rss, _, _ = weighted_lines((s_grid @ interp.T) / et[ok], y, w)
+        s_obs = _aquifer_functions(grid, spec, rates, red)[:, ok]
+        a, b, rss, _, _ = weighted_lines(s_obs / et, y, w[ok])
         for i in np.flatnonzero(np.isfinite(rss)):
             key = (b[i] < 0, rss[i])
             if best is None or key < best[0]:
@@ -174,3 +186,15 @@ def havlena_odeh_scan(grid: TankGrid, spec: AquiferModelSpec, rates, reds=(None,
     if best is None:
         raise InsufficientDataError("the aquifer function does not vary over the surveys: no line")
     return best[1]
+
+
+def havlena_odeh_line_on_surveys(
+    grid: TankGrid, spec: AquiferModelSpec, rate: float | None = None, red: float | None = None
+) -> HavlenaOdehLine:
+    """The Havlena-Odeh line of one aquifer model and time constant on a field's surveys (for a plot).
+
+    Same data and weights as :func:`havlena_odeh_scan`; points not used carry weight 0.
+    """
+    terms, _, w = _observed_terms(grid)
+    s_obs = _aquifer_functions(grid, spec, [rate], red)[0]
+    return havlena_odeh_aquifer_fit(terms, s_obs, weights=w)

@@ -39,7 +39,7 @@ from .aquifer import causal_convolution
 from .aquifer_models import SPECS, AquiferModelSpec, KernelCache
 from .aquifer_tank import TankGrid, TankSolver, tank_grid
 from .errors import InsufficientDataError
-from .havlena_odeh import havlena_odeh_scan
+from .havlena_odeh import havlena_odeh_line_on_surveys, havlena_odeh_scan
 from .inputs import FieldInputs
 from .modelfit import ModelFit
 from .prepare import PreparedData
@@ -376,6 +376,24 @@ def fit_aquifer_model(
             f"{grid.obs_pz_psia.size} included surveys: a {spec.title.lower()} needs at least {k + 2}"
         )
     return _fit(inputs, grid, spec, reds)
+
+
+def field_havlena_odeh_line(inputs: FieldInputs, prepared: PreparedData, model: str, rate=None, red=None):
+    """Havlena-Odeh line F/E_t against S/E_t on a field's surveys, for a model and time constant.
+
+    Without ``rate`` the best of the scan is used (as for the history match's starting
+    values). Returns (line, rate [1/day] or None, r_eD or None).
+    """
+    try:
+        spec = SPECS[model]
+    except KeyError:
+        raise ValueError(f"unknown aquifer model {model!r}; choose one of {sorted(SPECS)}") from None
+    grid = tank_grid(inputs, prepared)
+    if rate is None and spec.has_rate:
+        reds = VEH_RED_GRID if model == "aquifer_veh_radial" else (None,)
+        start = havlena_odeh_scan(grid, spec, SCAN_END_GRID[model] / float(grid.t_days[-1]), reds)
+        rate, red = start.rate, start.red
+    return havlena_odeh_line_on_surveys(grid, spec, rate, red), rate, red
 
 
 def fit_aquifer_models(

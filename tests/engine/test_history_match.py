@@ -16,7 +16,7 @@ from server.engine.aquifer import influx_van_everdingen_hurst
 from server.engine.aquifer_tank import tank_grid
 from server.engine.errors import InsufficientDataError
 from server.engine.havlena_odeh import havlena_odeh_aquifer_fit
-from server.engine.history_match import fit_aquifer_model, fit_aquifer_models
+from server.engine.history_match import field_havlena_odeh_line, fit_aquifer_model, fit_aquifer_models
 from server.engine.inputs import AnalysisChoices, LabTable
 from server.engine.mbal import havlena_odeh_terms
 from server.engine.prepare import prepare
@@ -146,3 +146,21 @@ def test_forward_model_uses_the_prepared_z_source():
     # has kinks in curvature at its nodes, so agreement is to ~4e-6 (0.02 psia of p/z).
     assert np.interp(p, grid.table.p, grid.table.z) == pytest.approx(z_points, rel=1e-5)
     assert grid.obs_pz_psia == pytest.approx(p / z_points)
+
+
+def test_havlena_odeh_line_on_noisy_surveys():
+    # The straight-line diagnostic on the surveys themselves (interpolated pressure history):
+    # the right model and time constant give G near the truth; the pot aquifer a biased G and
+    # a worse weighted fit.
+    f = synthetic_field(veh=VehAquifer(c72.U_RB_PER_PSI, c72.TD_PER_DAY), sigma_psia=5.0, seed=2)
+    veh, rate, red = field_havlena_odeh_line(f.inputs, f.prepared, "aquifer_veh_radial", rate=c72.TD_PER_DAY)
+    pot, _, _ = field_havlena_odeh_line(f.inputs, f.prepared, "aquifer_pot")
+    assert rate == c72.TD_PER_DAY and red is None
+    assert veh.giip_bscf == pytest.approx(100.0, abs=3 * veh.giip_se_bscf + 1.0)
+    assert veh.u_rb_per_psi == pytest.approx(c72.U_RB_PER_PSI, rel=0.15)
+    assert pot.giip_bscf > 110.0 and pot.rss_weighted > 3 * veh.rss_weighted
+    best, rate, _ = field_havlena_odeh_line(f.inputs, f.prepared, "aquifer_veh_radial")
+    # The scan's grid steps by a factor 3.2 in time constant: the best node lies within a step
+    # of the truth, and its line fits nearly as well as the true one.
+    assert 1 / 3.2 < rate / c72.TD_PER_DAY < 3.2
+    assert best.rss_weighted <= veh.rss_weighted * 2.0
