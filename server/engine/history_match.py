@@ -73,6 +73,7 @@ class _Problem:
         self.sqrt_w = np.sqrt(grid.obs_weight)
         self.i_strength = 2 if fit_pi else 1
         self._last = None  # (key, state, fitted p/z)
+        self.influx_frac_gradient = None  # d(We_end / (G B_gi))/dθ, set by jacobian()
 
     def unpack(self, theta):
         """(G [scf], p_i [psia], strength [rb/psi], time constant [1/day] or None)."""
@@ -129,9 +130,8 @@ class _Problem:
             )  # dp/dθ_j x step
             we_total = we + causal_convolution(st.dwe_dp_column, dp)
             jac[:, j] = (solver.observe(we_total, g, pi, st.p_psia + dp) - y) / steps[j]
-            self.influx_frac_gradient[j] = (we_total[-1] / solver.gas_pore_volume_rb(g, pi) - frac0) / steps[
-                j
-            ]
+            frac = we_total[-1] / solver.gas_pore_volume_rb(g, pi)
+            self.influx_frac_gradient[j] = (frac - frac0) / steps[j]
         return self.sqrt_w[:, None] * jac
 
 
