@@ -311,6 +311,7 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
             f"no significant aquifer support: the fitted influx is {influx_frac:.2%} ± {influx_se:.2%} "
             "of the gas pore volume by the end of the history"
         )
+    notes.append("rss_psia2 is the weighted sum of squares (survey-quality weights, good = 1).")
     params = dict(zip(names, (float(v) for v in values), strict=True))
     params["influx_frac_of_gas_pv"] = influx_frac  # derived: We / (G B_gi) at the end of the history
     if len(reds) > 1:
