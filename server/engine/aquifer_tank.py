@@ -25,10 +25,7 @@ from .aquifer import causal_convolution, lower_toeplitz
 from .errors import InsufficientDataError
 from .inputs import FieldInputs
 from .mbal import DEFAULT_BW_RB_PER_STB, field_effective_compressibility_per_psi, produced_water_is_liquid
-from .prepare import (
-    PreparedData,
-    _z_function,  # noqa: PLC2701 - the prepared points' own z source
-)
+from .prepare import PreparedData, field_z_function
 from .production import cumulative_at_times, production_start_t_days
 from .pvt import bg_rcf_per_scf
 from .units import FT3_PER_BBL, StandardConditions
@@ -129,7 +126,7 @@ def tank_grid(
         wp_obs = cumulative_at_times(obs_abs, ends, water) * bw_rb_per_stb
     # The same z as the prepared points: the lab table or the correlation for the (well-stream)
     # gas that prepare used. prepare has no public name for it yet.
-    z_of_p, _, _ = _z_function(inputs, prepared.fluid or inputs.fluid, [])
+    z_of_p, _, _ = field_z_function(inputs, prepared.fluid or inputs.fluid, [])
     table = PzTable(
         z_of_p,
         inputs.reservoir_temperature_degF,

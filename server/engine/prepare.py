@@ -121,7 +121,7 @@ def prepare(inputs: FieldInputs) -> PreparedData:
     ends = np.asarray(inputs.production_end_t_days, float)
     sep = np.asarray(inputs.production_gas_mscf, float)
     wet, fluid = _wet_gas(inputs, sep, fluid, notes)
-    zf, z_source, table = _z_function(inputs, fluid, notes)
+    zf, z_source, table = field_z_function(inputs, fluid, notes)
 
     t = np.asarray(inputs.survey_t_days, float)
     p_gauge = np.asarray(inputs.survey_p_psia, float)
@@ -274,7 +274,7 @@ def _wet_gas(inputs: FieldInputs, sep, fluid: GasFluid, notes: list[str]):
     return wet, fluid
 
 
-def _z_function(inputs: FieldInputs, fluid: GasFluid, notes: list[str]):
+def field_z_function(inputs: FieldInputs, fluid: GasFluid, notes: list[str]):
     """(z(p) at reservoir temperature, its description, the lab table or None)."""
     ch, t_res = inputs.choices, inputs.reservoir_temperature_degF
 
