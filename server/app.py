@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import datetime as dt
 import logging
 from contextlib import asynccontextmanager
 from pathlib import Path
@@ -14,10 +15,12 @@ from fastapi.staticfiles import StaticFiles
 from .db.base import utcnow
 from .db.session import Database
 from .engine import ENGINE_VERSION
+from .services.worker import Worker
 from .settings import PROJECT_ROOT, Settings
-from .web import account_pages, admin_pages, api, api_accounts, pages
+from .web import account_pages, admin_pages, api, api_accounts, api_uploads, pages, uploads
 from .web.auth import Public, Reader, document_auth_errors
 from .web.errors import install_error_handlers
+from .web.limits import UploadLimitMiddleware
 from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
 from .web.templating import make_templates
 
@@ -45,9 +48,19 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
         owned = app.state.db is None
         if owned:
             app.state.db = Database(settings.database_url)
+        app.state.worker = None
+        if settings.job_runner == "thread":
+            app.state.worker = Worker(
+                app.state.db,
+                poll_seconds=settings.job_poll_seconds,
+                stale_after=dt.timedelta(seconds=settings.job_stale_seconds),
+            )
+            app.state.worker.start()
         try:
             yield
         finally:
+            if app.state.worker is not None:
+                app.state.worker.stop()
             if owned:
                 app.state.db.dispose()
                 app.state.db = None
@@ -60,7 +73,6 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
             "Authenticate with `Authorization: Bearer <token>` (tokens are made on the account page)."
         ),
         lifespan=lifespan,
-        max_body_size=settings.max_upload_bytes,
         telemetry={"tracing": False, "metrics": False, "logs": False, "operation_spans": False},
         # The schema is served below behind a login; the interactive docs load scripts from a CDN.
         openapi_url=None,
@@ -73,6 +85,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.state.templates = make_templates()
     app.state.templates.context_processors.append(_auth_context)
     install_error_handlers(app)
+    app.add_middleware(UploadLimitMiddleware, max_bytes=settings.max_upload_bytes)
     app.add_middleware(CrossSiteGuardMiddleware)
     app.add_middleware(SecurityHeadersMiddleware, hsts=settings.behind_tls)
 
@@ -94,9 +107,11 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
 
     app.mount("/static", StaticFiles(directory=PROJECT_ROOT / "static"), name="static")
     app.include_router(api.router)
+    app.include_router(api_uploads.router)
     app.include_router(api_accounts.router)
     app.include_router(account_pages.router)
     app.include_router(admin_pages.router)
     app.include_router(pages.router)
+    app.include_router(uploads.router)
     document_auth_errors(app)
     return app

@@ -1,4 +1,4 @@
-"""The ``tankbook`` command: serve, migrate, demo, recompute, and accounts."""
+"""The ``tankbook`` command: serve, migrate, demo, recompute, worker, analyse, and accounts."""
 
 from __future__ import annotations
 
@@ -185,6 +185,109 @@ def cmd_serve(args) -> int:
     return 0
 
 
+def cmd_worker(args) -> int:
+    import datetime as dt
+    import signal
+
+    from .db.session import Database
+    from .services.worker import Worker
+
+    settings = _settings()
+    db = Database(settings.database_url)
+    worker = Worker(
+        db,
+        poll_seconds=settings.job_poll_seconds,
+        stale_after=dt.timedelta(seconds=settings.job_stale_seconds),
+    )
+    if args.once:
+        from .services import jobs
+
+        print(f"ran {jobs.drain(db, worker.name, stale_after=worker.stale_after)} job(s)")
+        db.dispose()
+        return 0
+    for sig in (signal.SIGTERM, signal.SIGINT):
+        signal.signal(sig, lambda *_: worker.stop(timeout=0))
+    print(f"worker {worker.name} waiting for jobs (Ctrl-C stops after the current job)")
+    worker.run()
+    db.dispose()
+    return 0
+
+
+def cmd_analyse(args) -> int:
+    import json
+    from pathlib import Path
+
+    from .engine.analysis import analyse_field
+    from .engine.errors import EngineError
+    from .services.ingest.offline import OfflineInputError, load_offline_field
+    from .services.ingest.parse import ReadOptions
+    from .services.serialize import to_jsonable
+
+    units = {}
+    for item in args.unit or []:
+        quantity, _, unit = item.partition("=")
+        units[quantity.strip()] = unit.strip()
+    options = ReadOptions(
+        units=units,
+        atmosphere_psia=args.atmosphere_psia,
+        date_order=args.date_order,
+        standard_conditions=args.standard_conditions,
+    )
+    try:
+        choices = json.loads(Path(args.choices).read_text()) if args.choices else {}
+        loaded = load_offline_field(
+            fields=Path(args.fields),
+            fluids=Path(args.fluids),
+            surveys=Path(args.surveys),
+            production=Path(args.production),
+            wells=Path(args.wells) if args.wells else None,
+            lab_table=Path(args.lab_table) if args.lab_table else None,
+            field_name=args.field,
+            options=options,
+            choices=choices,
+        )
+        result = analyse_field(loaded.inputs)
+    except OfflineInputError as exc:
+        print(json.dumps({"status": "invalid_input", "message": str(exc), "files": exc.reports}, indent=2))
+        return 2
+    except (OSError, ValueError) as exc:
+        print(json.dumps({"status": "invalid_input", "message": str(exc)}, indent=2))
+        return 2
+    except EngineError as exc:
+        print(json.dumps({"status": "error", "message": str(exc)}, indent=2))
+        return 1
+    out = {
+        "field": loaded.name,
+        "status": result.status,
+        "engine_version": result.engine_version,
+        "caution": CAUTION,
+        "files": loaded.reports,
+        "summary": to_jsonable(
+            {
+                "method": result.method,
+                "message": result.message,
+                "giip_low_bscf": result.giip_low_bscf,
+                "giip_best_bscf": result.giip_best_bscf,
+                "giip_high_bscf": result.giip_high_bscf,
+                "eur_bscf": result.eur_bscf,
+                "recovery_factor_frac": result.recovery_factor_frac,
+                "cumulative_gas_bscf": result.cumulative_gas_bscf,
+                "remaining_bscf": result.remaining_bscf,
+                "standard_conditions": loaded.inputs.standard_conditions.label,
+            }
+        ),
+        "analysis": to_jsonable(result),
+    }
+    print(json.dumps(out, indent=2, allow_nan=False))
+    return 0 if result.status == "ok" else 3
+
+
+CAUTION = (
+    "Estimates support, and do not replace, the judgement of qualified reservoir engineers; reserves "
+    "must be booked under the rules that apply to your company. Intervals reflect data scatter only."
+)
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="tankbook", description=__doc__)
     sub = parser.add_subparsers(dest="command", required=True)
@@ -214,6 +317,34 @@ def build_parser() -> argparse.ArgumentParser:
             a.add_argument("--role", required=True, choices=["viewer", "engineer", "approver", "admin"])
             a.add_argument("--asset", action="append", help="limit to this asset (repeatable); default: all")
         a.set_defaults(func=func)
+    w = sub.add_parser("worker", help="run queued recompute jobs (any number may run at once)")
+    w.add_argument("--once", action="store_true", help="run what is queued, then stop")
+    w.set_defaults(func=cmd_worker)
+    a = sub.add_parser(
+        "analyse",
+        help="analyse one field from upload files, without a database; prints JSON",
+        description="Reads the field, fluid, survey and production files (the upload formats in "
+        "docs/uploads.md) and prints the full estimate as JSON. Exit status: 0 estimate, 2 invalid "
+        "files, 3 the data cannot support an estimate, 1 engine error.",
+    )
+    a.add_argument("--fields", required=True, help="fields file (one row, or choose with --field)")
+    a.add_argument("--fluids", required=True, help="fluid descriptions file")
+    a.add_argument("--surveys", required=True, help="pressure surveys file")
+    a.add_argument("--production", required=True, help="monthly production file")
+    a.add_argument("--wells", help="wells file (compartments, gauge reference depths)")
+    a.add_argument("--lab-table", help="fluid lab table file")
+    a.add_argument("--field", help="field name, when the files hold several")
+    a.add_argument("--choices", help="JSON file of analysis choices (z_method, weighting, ...)")
+    a.add_argument(
+        "--unit",
+        action="append",
+        metavar="QUANTITY=UNIT",
+        help="unit for columns named without one, e.g. pressure=psig (repeatable)",
+    )
+    a.add_argument("--atmosphere-psia", type=float, default=14.696, help="for gauge pressures")
+    a.add_argument("--date-order", choices=("iso", "dmy", "mdy"), default="iso")
+    a.add_argument("--standard-conditions", choices=("oilfield", "iso"), default="oilfield")
+    a.set_defaults(func=cmd_analyse)
     return parser
 
 

@@ -33,8 +33,10 @@ class Settings(BaseSettings):
     display_units: Literal["oilfield", "si"] = "oilfield"
     atmosphere_psia: float = Field(default=14.696, gt=10, lt=16)
     max_upload_bytes: int = Field(default=20 * 1024 * 1024, gt=0)
-    run_jobs_inline: bool = Field(
-        default=True, description="Run recompute jobs right after an upload in the request."
+    job_runner: Literal["thread", "inline", "external"] = Field(
+        default="thread",
+        description="thread: the app runs queued jobs in a background thread; inline: a request that "
+        "queues jobs runs them before it answers (tests, scripts); external: `tankbook worker` processes.",
     )
     behind_tls: bool = Field(
         default=False,
@@ -51,6 +53,16 @@ class Settings(BaseSettings):
     login_free_failures_per_address: int = Field(default=20, ge=1)
     login_throttle_window_minutes: int = Field(default=15, gt=0)
     login_max_delay_seconds: int = Field(default=900, gt=0)
+    job_poll_seconds: float = Field(default=2.0, gt=0, description="How often an idle worker looks for jobs.")
+    job_stale_seconds: int = Field(
+        default=300, gt=0, description="A running job without a heartbeat for this long is taken over."
+    )
+    xlsx_max_uncompressed_bytes: int = Field(
+        default=100 * 1024 * 1024,
+        gt=0,
+        description="XLSX uploads that expand beyond this are refused unopened.",
+    )
+    xlsx_max_members: int = Field(default=500, gt=0, description="XLSX uploads with more parts are refused.")
 
     @model_validator(mode="after")
     def _refuse_insecure(self) -> Settings:

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import numpy as np
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
@@ -10,10 +9,10 @@ from ..db.models import Estimate, Field, FieldAnalysisSettings, PressureSurvey, 
 from ..engine import ENGINE_VERSION
 from ..engine.analysis import FieldAnalysis, analyse_field
 from ..engine.errors import EngineError
-from ..engine.inputs import AnalysisChoices, FieldInputs, LabTable
+from ..engine.inputs import AnalysisChoices, FieldInputs
 from ..engine.pvt import GasFluid
+from .fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
 from .serialize import fingerprint, to_jsonable
-from .timebase import days_from_date, month_end_exclusive
 
 
 class FieldNotReadyError(Exception):
@@ -43,50 +42,35 @@ def load_field_inputs(session: Session, field: Field) -> FieldInputs:
         .group_by(ProductionMonth.month, Well.compartment)
         .order_by(ProductionMonth.month)
     ).all()
-    months = sorted({m for m, *_ in monthly})
-    index = {m: i for i, m in enumerate(months)}
-    gas = np.zeros(len(months))
-    cond = np.zeros(len(months))
-    water = np.zeros(len(months))
-    by_comp: dict[str, np.ndarray] = {}
-    for m, comp, g, c, w in monthly:
-        i = index[m]
-        gas[i] += float(g)
-        cond[i] += float(c)
-        water[i] += float(w)
-        if comp is not None:
-            by_comp.setdefault(comp, np.zeros(len(months)))[i] += float(g)
     fl = field.fluid
-    lab = None
-    if fl.lab_points:
-        zs = [p.z_factor for p in fl.lab_points]
-        bgs = [p.bg_rcf_per_scf for p in fl.lab_points]
-        lab = LabTable(
-            pressure_psia=np.array([p.pressure_psia for p in fl.lab_points]),
-            z_factor=np.array(zs, float) if all(z is not None for z in zs) else None,
-            bg_rcf_per_scf=np.array(bgs, float) if all(b is not None for b in bgs) else None,
-        )
-    return FieldInputs(
+    lab = lab_table_from_points([(p.pressure_psia, p.z_factor, p.bg_rcf_per_scf) for p in fl.lab_points])
+    return build_field_inputs(
         fluid=GasFluid(fl.gas_gravity, fl.y_co2_frac, fl.y_h2s_frac, fl.y_n2_frac),
         reservoir_temperature_degF=field.reservoir_temperature_degF,
         initial_pressure_psia=field.initial_pressure_psia,
         abandonment_pressure_psia=field.abandonment_pressure_psia,
         datum_depth_ft=field.datum_depth_ft,
-        survey_t_days=np.array([days_from_date(s.survey_date) for s, _ in surveys]),
-        survey_p_psia=np.array([s.pressure_psia for s, _ in surveys]),
-        survey_gauge_depth_ft=np.array([s.gauge_depth_ft for s, _ in surveys]),
-        survey_included=np.array([not s.excluded for s, _ in surveys], dtype=bool),
-        production_end_t_days=np.array([days_from_date(month_end_exclusive(m)) for m in months]),
-        production_gas_mscf=gas,
-        production_condensate_stb=cond,
-        production_water_stb=water,
-        survey_well=tuple(w.name for _, w in surveys),
-        survey_compartment=tuple(w.compartment for _, w in surveys),
-        survey_quality=tuple(s.quality for s, _ in surveys),
-        survey_kind=tuple(s.kind for s, _ in surveys),
-        survey_exclusion_reason=tuple(s.exclusion_reason for s, _ in surveys),
-        survey_id=tuple(s.id for s, _ in surveys),
-        production_by_compartment=tuple(sorted(by_comp.items())),
+        surveys=[
+            SurveyRecord(
+                survey_date=s.survey_date,
+                pressure_psia=s.pressure_psia,
+                gauge_depth_ft=s.gauge_depth_ft,
+                well=w.name,
+                compartment=w.compartment,
+                quality=s.quality,
+                kind=s.kind,
+                included=not s.excluded,
+                exclusion_reason=s.exclusion_reason,
+                survey_id=s.id,
+            )
+            for s, w in surveys
+        ],
+        production=[
+            ProductionRecord(
+                month=m, gas_mscf=float(g), condensate_stb=float(c), water_stb=float(w), compartment=comp
+            )
+            for m, comp, g, c, w in monthly
+        ],
         condensate_api=fl.condensate_api,
         lab_table=lab,
         choices=choices_from_settings(field.settings),

@@ -6,7 +6,7 @@ import datetime as dt
 from typing import Annotated, Any, Literal
 
 from fastapi import Path
-from pydantic import AfterValidator, BaseModel, ConfigDict, Field
+from pydantic import AfterValidator, BaseModel, ConfigDict
 
 
 def _utc(value: dt.datetime) -> dt.datetime:
@@ -77,47 +77,6 @@ class FieldRead(Schema):
     description: str
     wells: list[WellRead]
     detail: dict[str, Any]
-
-
-class ProblemRead(Schema):
-    row: int | None
-    column: str | None
-    value: str | None
-    message: str
-    severity: Literal["error", "warning"]
-
-
-class ReportRead(Schema):
-    kind: str
-    rows_total: int
-    error_count: int
-    warning_count: int
-    problems: list[ProblemRead]
-    problems_not_shown: int
-
-
-class UploadPreviewRead(Schema):
-    kind: str
-    filename: str
-    rows_total: int
-    to_insert: int
-    to_replace: int
-    unchanged: int
-    fields: list[int]
-
-
-class UploadResultRead(Schema):
-    status: Literal["committed", "unchanged", "dry_run", "rejected", "needs_confirmation"]
-    upload_id: int | None = None
-    report: ReportRead
-    preview: UploadPreviewRead
-
-
-class UploadRowsBody(BaseModel):
-    """A JSON upload: rows as objects whose keys are the file kind's column names."""
-
-    rows: list[dict[str, str | float | int | None]] = Field(max_length=200_000)
-    filename: str = Field(default="api.json", max_length=255)
 
 
 class HealthRead(BaseModel):

@@ -66,7 +66,7 @@ def make_user(db, role: str = "engineer", username: str | None = None, asset_ids
 
 @pytest.fixture
 def settings():
-    return Settings(environment="test", secret_key="t" * 40, database_url="sqlite://")
+    return Settings(environment="test", secret_key="t" * 40, database_url="sqlite://", job_runner="inline")
 
 
 @pytest.fixture

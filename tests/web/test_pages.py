@@ -1,11 +1,8 @@
-"""Pages and their JSON twins: key elements, headers, uploads through the web form."""
+"""Pages and their JSON twins: key elements, headers, cross-site protection (uploads: test_uploads.py)."""
 
 import json
 import re
 
-from sqlalchemy import select
-
-from server.db.models import Estimate
 from server.services import jobs
 from tests.factories import add_volumetric_history, make_field
 
@@ -71,44 +68,6 @@ def _form_token(client):
     return re.search(r'name="csrf_token" value="([^"]+)"', page.text).group(1)
 
 
-def test_upload_form_previews_then_commits_and_recomputes(db, client):
-    fid = _seed(db)
-    token = _form_token(client)
-    csv_text = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,1500\n"
-    r = client.post(
-        "/upload",
-        data={"kind": "surveys", "csrf_token": token, "action": "preview"},
-        files={"file": ("s.csv", csv_text, "text/csv")},
-    )
-    assert r.status_code == 200 and "Would add 1" in r.text
-    staged = re.search(r'name="staged" value="([^"]+)"', r.text).group(1)
-    r = client.post(
-        "/upload",
-        data={
-            "kind": "surveys",
-            "csrf_token": token,
-            "action": "commit",
-            "staged": staged,
-            "filename": "s.csv",
-        },
-    )
-    assert r.status_code == 200 and "Stored upload" in r.text
-    with db.session() as s:
-        n = len(s.execute(select(Estimate).where(Estimate.field_id == fid)).scalars().all())
-    assert n == 2
-
-
-def test_upload_form_reports_errors(db, client):
-    _seed(db)
-    token = _form_token(client)
-    bad = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,abc\n"
-    r = client.post(
-        "/upload", data={"kind": "surveys", "csrf_token": token}, files={"file": ("bad.csv", bad, "text/csv")}
-    )
-    assert r.status_code == 422
-    assert "is not a number" in r.text and "Store these rows" not in r.text
-
-
 def test_form_without_token_is_refused(client):
     r = client.post(
         "/upload",
@@ -128,29 +87,6 @@ def test_cross_site_post_is_refused(client):
         headers={"Sec-Fetch-Site": "cross-site", "Origin": "https://evil.example"},
     )
     assert r.status_code == 403
-
-
-def test_api_upload_reports_rows_and_writes_nothing_on_error(db, client):
-    _seed(db)
-    bad = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,-3\nUpland,W-2,2017-02-30,100\n"
-    r = client.post("/api/uploads/surveys", files={"file": ("bad.csv", bad, "text/csv")})
-    assert r.status_code == 422
-    body = r.json()
-    assert body["status"] == "rejected"
-    assert [(p["row"], p["column"]) for p in body["report"]["problems"]] == [
-        (2, "pressure_psia"),
-        (3, "survey_date"),
-    ]
-
-
-def test_api_json_rows_upload(db, client):
-    _seed(db)
-    rows = {"rows": [{"field": "Upland", "well": "W-2", "survey_date": "2017-01-15", "pressure_psia": 1500}]}
-    r = client.post("/api/uploads/surveys/rows", json=rows)
-    assert r.status_code == 200, r.text
-    assert r.json()["status"] == "committed"
-    r = client.post("/api/uploads/surveys/rows", json=rows)
-    assert r.json()["status"] == "unchanged"
 
 
 def test_openapi_schema_lists_api(client):

@@ -14,6 +14,7 @@ from .portfolio import (
     Well,
 )
 from .results import Estimate, Job, Upload
+from .staging import StagedUpload
 
 __all__ = [
     "ApiToken",
@@ -30,6 +31,7 @@ __all__ = [
     "LoginAttempt",
     "PressureSurvey",
     "ProductionMonth",
+    "StagedUpload",
     "Upload",
     "User",
     "UserAsset",

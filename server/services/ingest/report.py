@@ -1,4 +1,4 @@
-"""Validation problems and reports."""
+"""Validation problems, how the file was read, and the report a user sees."""
 
 from __future__ import annotations
 
@@ -6,6 +6,7 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 MAX_PROBLEMS_SHOWN = 200
+MAX_PROBLEMS_KEPT = 5000  # beyond this only the counts grow (a hostile file cannot fill memory)
 
 
 @dataclass(frozen=True)
@@ -29,12 +30,34 @@ class Problem:
         return f"{prefix}: {self.message}{shown}" if prefix else f"{self.message}{shown}"
 
 
+@dataclass(frozen=True)
+class ColumnReading:
+    """How one header of the file was understood (shown in the preview)."""
+
+    header: str  # as written in the file
+    column: str  # Tankbook's column
+    unit: str | None  # canonical unit, if the column has one
+    unit_from: Literal["header", "form", "default", "none"]
+    meaning: str  # in words, e.g. "bar gauge, converted to psia with an atmosphere of 14.696 psia"
+
+
+def _row_order(p: Problem) -> int:
+    return p.row if p.row is not None else 0
+
+
 class UploadRejectedError(Exception):
-    """Raised when an upload has errors; carries the full report."""
+    """Raised when an upload has errors (or unconfirmed warnings); carries the full report."""
 
     def __init__(self, report: ValidationReport):
-        super().__init__(f"{len(report.errors)} error(s) in the upload")
+        super().__init__(f"{report.error_count} error(s) in the upload")
         self.report = report
+
+
+def _short(value, limit: int = 80) -> str | None:
+    if value is None:
+        return None
+    text = str(value)
+    return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
 @dataclass
@@ -42,30 +65,47 @@ class ValidationReport:
     kind: str
     rows_total: int = 0
     problems: list[Problem] = field(default_factory=list)
+    error_count: int = 0
+    warning_count: int = 0
+    columns: list[ColumnReading] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)  # file-level readings: encoding, delimiter, ...
 
-    def add(self, row, column, value, message, severity="error") -> None:
-        self.problems.append(Problem(row, column, None if value is None else str(value), message, severity))
+    def add(self, row, column, value, message, severity: Literal["error", "warning"] = "error") -> None:
+        if severity == "error":
+            self.error_count += 1
+        else:
+            self.warning_count += 1
+        if len(self.problems) < MAX_PROBLEMS_KEPT:
+            self.problems.append(Problem(row, column, _short(value), message, severity))
+
+    def note(self, text: str) -> None:
+        if text not in self.notes:
+            self.notes.append(text)
 
     @property
     def errors(self) -> list[Problem]:
-        return [p for p in self.problems if p.severity == "error"]
+        """Errors in row order (file-level problems first)."""
+        return sorted((p for p in self.problems if p.severity == "error"), key=_row_order)
 
     @property
     def warnings(self) -> list[Problem]:
-        return [p for p in self.problems if p.severity == "warning"]
+        return sorted((p for p in self.problems if p.severity == "warning"), key=_row_order)
 
     @property
     def ok(self) -> bool:
-        return not self.errors
+        return self.error_count == 0
+
+    def shown(self) -> list[Problem]:
+        """Errors before warnings, each by row; capped at :data:`MAX_PROBLEMS_SHOWN`."""
+        return (self.errors + self.warnings)[:MAX_PROBLEMS_SHOWN]
 
     def as_dict(self) -> dict:
-        ordered = sorted(self.problems, key=lambda p: p.row if p.row is not None else 0)
-        shown = ordered[:MAX_PROBLEMS_SHOWN]
+        shown = self.shown()
         return {
             "kind": self.kind,
             "rows_total": self.rows_total,
-            "error_count": len(self.errors),
-            "warning_count": len(self.warnings),
+            "error_count": self.error_count,
+            "warning_count": self.warning_count,
             "problems": [
                 {
                     "row": p.row,
@@ -76,5 +116,16 @@ class ValidationReport:
                 }
                 for p in shown
             ],
-            "problems_not_shown": max(0, len(self.problems) - MAX_PROBLEMS_SHOWN),
+            "problems_not_shown": self.error_count + self.warning_count - len(shown),
+            "columns": [
+                {
+                    "header": c.header,
+                    "column": c.column,
+                    "unit": c.unit,
+                    "unit_from": c.unit_from,
+                    "meaning": c.meaning,
+                }
+                for c in self.columns
+            ],
+            "notes": list(self.notes),
         }

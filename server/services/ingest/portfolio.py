@@ -1,0 +1,426 @@
+"""Fields, wells, fluid descriptions, lab tables and volumetric estimates."""
+
+from __future__ import annotations
+
+from sqlalchemy import select
+from sqlalchemy.orm import Session
+
+from ...db.models import (
+    Asset,
+    Field,
+    FieldAnalysisSettings,
+    Fluid,
+    FluidLabPoint,
+    VolumetricEstimate,
+    Well,
+)
+from .. import audit
+from ..audit import Actor
+from .kinds import CASES, MC_PARAMETERS
+from .parse import Parsed
+from .plan import Change, Names, UploadPlan, place, plain
+from .write import replace_row
+
+FIELD_COLUMNS = (
+    ("datum_depth_ft", "datum_depth"),
+    ("reservoir_temperature_degF", "reservoir_temperature"),
+    ("initial_pressure_psia", "initial_pressure"),
+    ("abandonment_pressure_psia", "abandonment_pressure"),
+    ("description", "description"),
+)
+VOLUMETRIC_CHECK_FRAC = 0.25  # best GIIP vs the product of the best inputs (common practice: a sanity check)
+MC_STORED = {
+    "rock_volume": "rock_volume_ft3",
+    "net_to_gross": "net_to_gross_frac",
+    "porosity": "porosity_frac",
+    "gas_saturation": "gas_saturation_frac",
+    "bgi": "bgi_rcf_per_scf",
+}
+
+
+def _present(parsed: Parsed, pairs) -> tuple[str, ...]:
+    return tuple(stored for stored, col in pairs if col in parsed.columns)
+
+
+def plan_fields(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
+    report = plan.report
+    names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
+    assets = {a.name.casefold(): a for a in session.execute(select(Asset)).scalars()}
+    new_assets: dict[str, str] = {}
+    for r in parsed.records:
+        if r["abandonment_pressure"] >= r["initial_pressure"]:
+            report.add(
+                r["_row"],
+                "abandonment_pressure",
+                round(r["abandonment_pressure"], 2),
+                f"must be below the initial pressure ({r['initial_pressure']:,.1f} psia)",
+            )
+            continue
+        f = names.field(r["field"], r["_row"], required=False)
+        if f is None and r["field"].casefold() in names.hidden:
+            report.add(r["_row"], "field", r["field"], "a field of this name exists outside your assets")
+            continue
+        asset = assets.get(r["asset"].casefold())
+        if plan.asset_ids is not None and (asset is None or asset.id not in plan.asset_ids):
+            report.add(
+                r["_row"],
+                "asset",
+                r["asset"],
+                "is not one of your assets; new assets are created by users with access to every asset",
+            )
+            continue
+        if asset is None:
+            new_assets.setdefault(r["asset"].casefold(), r["asset"])
+        values = {stored: r[col] for stored, col in FIELD_COLUMNS}
+        values.update(asset_name=asset.name if asset else r["asset"], basin=r["basin"], name=r["field"])
+        change = Change("field", r["_row"], r["field"], values, r["field"])
+        if f is None:
+            plan.inserts.append(change)
+            continue
+        compare = _present(parsed, FIELD_COLUMNS)
+        if asset is None or asset.id != f.asset_id:
+            report.add(
+                r["_row"],
+                "asset",
+                r["asset"],
+                f"field {f.name!r} belongs to asset {f.asset.name!r}; moving a field between assets "
+                "is done by an administrator, not by an upload",
+            )
+            continue
+        place(plan, change, f, compare, replace, f"field {f.name!r}")
+        plan.field_ids.add(f.id)
+    if new_assets:
+        report.note(f"new asset(s) will be created: {', '.join(sorted(new_assets.values()))}")
+    plan.extra["new_assets"] = new_assets
+
+
+def write_fields(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+    assets = {a.name.casefold(): a for a in session.execute(select(Asset)).scalars()}
+    for c in plan.inserts:
+        v = c.values
+        asset = assets.get(v["asset_name"].casefold())
+        if asset is None:
+            asset = assets[v["asset_name"].casefold()] = Asset(name=v["asset_name"], basin=v["basin"])
+            session.add(asset)
+        f = Field(asset=asset, name=v["name"], **{k: v[k] for k, _ in FIELD_COLUMNS})
+        session.add(f)
+        session.add(FieldAnalysisSettings(field=f))
+        session.flush()
+        plan.field_ids.add(f.id)
+        _audit_insert(session, actor, upload_id, "field", f.id, f.id, c)
+    for c in plan.replacements:
+        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.id)
+
+
+def plan_wells(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
+    names = Names(session, {r["field"] for r in parsed.records}, plan.report, plan.asset_ids)
+    compare = _present(
+        parsed, (("compartment", "compartment"), ("gauge_reference_depth_ft", "gauge_reference_depth"))
+    )
+    for r in parsed.records:
+        f = names.field(r["field"], r["_row"])
+        if f is None:
+            continue
+        found = names.wells.get((f.id, r["well"].casefold()), [])
+        current = next((w for w in found if w.name == r["well"]), found[0] if len(found) == 1 else None)
+        values = dict(
+            field_id=f.id,
+            name=r["well"],
+            compartment=r.get("compartment"),
+            gauge_reference_depth_ft=r.get("gauge_reference_depth"),
+        )
+        place(
+            plan,
+            Change("well", r["_row"], f"{f.name} / {r['well']}", values, f.name),
+            current,
+            compare,
+            replace,
+            f"well {r['well']!r}",
+        )
+        plan.field_ids.add(f.id)
+
+
+def write_wells(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+    for c in plan.inserts:
+        w = Well(**c.values)
+        session.add(w)
+        session.flush()
+        _audit_insert(session, actor, upload_id, "well", w.id, w.field_id, c)
+    for c in plan.replacements:
+        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+
+
+FLUID_COLUMNS = (
+    ("gas_gravity", "gas_gravity"),
+    ("y_co2_frac", "co2"),
+    ("y_h2s_frac", "h2s"),
+    ("y_n2_frac", "n2"),
+    ("condensate_api", "condensate_api"),
+)
+
+
+def plan_fluids(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
+    report = plan.report
+    names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
+    for r in parsed.records:
+        if r["co2"] + r["h2s"] + r["n2"] >= 1.0:
+            report.add(r["_row"], None, None, "CO2, H2S and N2 fractions add up to 1 or more")
+            continue
+        f = names.field(r["field"], r["_row"])
+        if f is None:
+            continue
+        values = {stored: r[col] for stored, col in FLUID_COLUMNS}
+        values["field_id"] = f.id
+        place(
+            plan,
+            Change("fluid", r["_row"], f.name, values, f.name),
+            f.fluid,
+            _present(parsed, FLUID_COLUMNS),
+            replace,
+            f"the fluid of field {f.name!r}",
+        )
+        plan.field_ids.add(f.id)
+
+
+def write_fluids(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+    for c in plan.inserts:
+        fl = Fluid(**c.values)
+        session.add(fl)
+        session.flush()
+        _audit_insert(session, actor, upload_id, "fluid", fl.id, fl.field_id, c)
+    for c in plan.replacements:
+        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+
+
+def plan_lab_table(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
+    """Each field's rows are its whole table: identical is unchanged, different replaces it."""
+    report = plan.report
+    names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
+    tables: dict[int, tuple[Field, list[dict]]] = {}
+    for r in parsed.records:
+        f = names.field(r["field"], r["_row"])
+        if f is None:
+            continue
+        if f.fluid is None:
+            report.add(
+                r["_row"],
+                "field",
+                r["field"],
+                "the field has no fluid description; upload a fluids file first",
+            )
+            continue
+        tables.setdefault(f.id, (f, []))[1].append(r)
+    for f, rows in tables.values():
+        points = lab_points(f.name, rows, report)
+        if points is None:
+            continue
+        first = min(r["_row"] for r in rows)
+        old = [
+            {"pressure_psia": p.pressure_psia, "z_factor": p.z_factor, "bg_rcf_per_scf": p.bg_rcf_per_scf}
+            for p in f.fluid.lab_points
+        ]
+        change = Change(
+            "fluid_lab_point",
+            first,
+            f"lab table of {f.name} ({len(points)} pressures)",
+            {"points": points},
+            f.name,
+        )
+        plan.field_ids.add(f.id)
+        if not old:
+            plan.inserts.append(change)
+        elif _same_points(old, points):
+            plan.unchanged += len(points)
+        elif not replace:
+            report.add(
+                first,
+                None,
+                None,
+                f"field {f.name!r} already has a different lab table ({len(old)} "
+                "pressures); choose 'replace existing' to replace it",
+            )
+        else:
+            change.current, change.before = (
+                f.fluid,
+                {"points": [{k: plain(v) for k, v in p.items()} for p in old]},
+            )
+            plan.replacements.append(change)
+
+
+def lab_points(field_name: str, rows: list[dict], report) -> list[dict] | None:
+    """One field's lab table from its rows, sorted by pressure; None if it is unusable."""
+    rows = sorted(rows, key=lambda r: r["pressure"])
+    first = min(r["_row"] for r in rows)
+    ok = True
+    for r in rows:
+        if r.get("z_factor") is None and r.get("bg") is None:
+            report.add(r["_row"], None, None, "give z_factor or bg (or both)")
+            ok = False
+    if len(rows) < 2:
+        report.add(
+            first, None, None, f"the lab table of {field_name!r} has one pressure; at least two are needed"
+        )
+        return None
+    for col in ("z_factor", "bg"):
+        given = [r.get(col) is not None for r in rows]
+        if any(given) and not all(given):
+            missing = next(r["_row"] for r in rows if r.get(col) is None)
+            report.add(
+                missing, col, None, f"{col} is given for some pressures of {field_name!r} but not this one"
+            )
+            ok = False
+    if not ok:
+        return None
+    return [
+        {"pressure_psia": r["pressure"], "z_factor": r.get("z_factor"), "bg_rcf_per_scf": r.get("bg")}
+        for r in rows
+    ]
+
+
+def _same_points(a: list[dict], b: list[dict]) -> bool:
+    from .plan import same
+
+    return len(a) == len(b) and all(same(x[k], y[k]) for x, y in zip(a, b, strict=True) for k in x)
+
+
+def write_lab_table(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+    for c in plan.inserts + plan.replacements:
+        f = session.execute(select(Field).where(Field.name == c.field_name)).scalar_one()
+        fluid = f.fluid
+        if c.current is not None:
+            fluid.lab_points.clear()
+            session.flush()
+        for p in c.values["points"]:
+            fluid.lab_points.append(FluidLabPoint(**p))
+        session.flush()
+        audit.record(
+            session,
+            actor,
+            "replace" if c.current is not None else "insert",
+            "fluid_lab_point",
+            fluid.id,
+            field_id=f.id,
+            before=c.before,
+            after={"points": [{k: plain(v) for k, v in p.items()} for p in c.values["points"]]},
+            summary=f"upload {upload_id}, row {c.row}: {c.label}",
+        )
+
+
+VOLUMETRIC_COLUMNS = (
+    ("author", "author"),
+    ("giip_low_bscf", "giip_low"),
+    ("giip_best_bscf", "giip_best"),
+    ("giip_high_bscf", "giip_high"),
+    ("method", "method"),
+    ("inputs", "inputs"),
+)
+
+
+def plan_volumetrics(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
+    report = plan.report
+    names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
+    for r in parsed.records:
+        row = r["_row"]
+        if not r["giip_low"] <= r["giip_best"] <= r["giip_high"]:
+            report.add(row, None, None, "GIIP must be ordered low ≤ best ≤ high")
+            continue
+        inputs = _mc_inputs(r, report)
+        if inputs is False:
+            continue
+        method = r.get("method") or ("monte_carlo" if inputs else "deterministic")
+        if method == "monte_carlo" and not inputs:
+            report.add(
+                row,
+                "method",
+                method,
+                "a Monte Carlo estimate needs the input ranges (rock_volume_low_… to bgi_high_…)",
+            )
+            continue
+        f = names.field(r["field"], row)
+        if f is None:
+            continue
+        values = dict(
+            field_id=f.id,
+            estimate_date=r["estimate_date"],
+            author=r["author"],
+            giip_low_bscf=r["giip_low"],
+            giip_best_bscf=r["giip_best"],
+            giip_high_bscf=r["giip_high"],
+            method=method,
+            inputs=inputs,
+        )
+        current = session.execute(
+            select(VolumetricEstimate)
+            .where(
+                VolumetricEstimate.field_id == f.id, VolumetricEstimate.estimate_date == r["estimate_date"]
+            )
+            .order_by(VolumetricEstimate.id)
+            .limit(1)
+        ).scalar_one_or_none()
+        compare = tuple(s for s, c in VOLUMETRIC_COLUMNS if c in parsed.columns or s in ("method", "inputs"))
+        place(
+            plan,
+            Change(
+                "volumetric_estimate", row, f"{f.name} / {r['estimate_date'].isoformat()}", values, f.name
+            ),
+            current,
+            compare,
+            replace,
+            "a volumetric estimate for this field and date",
+        )
+        plan.field_ids.add(f.id)
+
+
+def _mc_inputs(r: dict, report) -> dict | None | bool:
+    """The Monte Carlo ranges of a row (None if none given, False if they are unusable)."""
+    given = {f"{p}_{c}": r.get(f"{p}_{c}") for p in MC_PARAMETERS for c in CASES}
+    if all(v is None for v in given.values()):
+        return None
+    missing = [k for k, v in given.items() if v is None]
+    if missing:
+        report.add(r["_row"], None, None, f"Monte Carlo inputs are incomplete: missing {', '.join(missing)}")
+        return False
+    out = {}
+    for p in MC_PARAMETERS:
+        low, best, high = (given[f"{p}_{c}"] for c in CASES)
+        if not low <= best <= high:
+            report.add(r["_row"], f"{p}_low", low, f"{p} must be ordered low ≤ best ≤ high")
+            return False
+        out[MC_STORED[p]] = {"low": low, "best": best, "high": high}
+    b = {p: given[f"{p}_best"] for p in MC_PARAMETERS}
+    product_bscf = b["rock_volume"] * b["net_to_gross"] * b["porosity"] * b["gas_saturation"] / b["bgi"] / 1e9
+    if abs(product_bscf - r["giip_best"]) > VOLUMETRIC_CHECK_FRAC * r["giip_best"]:
+        report.add(
+            r["_row"],
+            "giip_best",
+            r["giip_best"],
+            f"differs by more than "
+            f"{VOLUMETRIC_CHECK_FRAC:.0%} from the product of the best inputs ({product_bscf:,.4g} Bscf)",
+            "warning",
+        )
+    return out
+
+
+def write_volumetrics(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+    for c in plan.inserts:
+        v = VolumetricEstimate(**c.values)
+        session.add(v)
+        session.flush()
+        _audit_insert(session, actor, upload_id, "volumetric_estimate", v.id, v.field_id, c)
+    for c in plan.replacements:
+        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+
+
+def _audit_insert(
+    session, actor: Actor, upload_id: int, entity: str, entity_id: int, field_id, c: Change
+) -> None:
+    audit.record(
+        session,
+        actor,
+        "insert",
+        entity,
+        entity_id,
+        field_id=field_id,
+        after={k: plain(v) for k, v in c.values.items() if k != "points"},
+        summary=f"upload {upload_id}, row {c.row}: {c.label}",
+    )
