@@ -52,6 +52,11 @@ EVENT_INTERVAL_S = 0.5
 EVENT_STREAM_MAX_S = 600.0  # the browser reconnects after this
 
 
+def scope(settings, user: Principal) -> dict:
+    """The limits and asset access every check and store of a request's upload runs under."""
+    return {"xlsx_limits": xlsx_limits(settings), "asset_ids": user.asset_ids}
+
+
 def xlsx_limits(settings) -> XlsxLimits:
     return XlsxLimits(settings.xlsx_max_uncompressed_bytes, settings.xlsx_max_members)
 
@@ -103,7 +108,6 @@ def _run(
     options = q.read_options(
         atmosphere_psia=settings.atmosphere_psia, standard_conditions=settings.standard_conditions
     )
-    limits = xlsx_limits(settings)
     if q.dry_run:
         with db.session() as session:
             plan = check_upload(
@@ -113,8 +117,7 @@ def _run(
                 filename=filename,
                 options=options,
                 replace=q.replace,
-                xlsx_limits=limits,
-                asset_ids=user.asset_ids,
+                **scope(settings, user),
             )
             session.rollback()
         status = "rejected" if not plan.report.ok else "dry_run"
@@ -129,8 +132,7 @@ def _run(
         accept_warnings=q.accept_warnings,
         actor=user.actor,
         expected_digest=q.expected_digest,
-        xlsx_limits=limits,
-        asset_ids=user.asset_ids,
+        **scope(settings, user),
     )
     if result.status == "committed":
         jobs_queued(request)

@@ -17,7 +17,7 @@ from ..services.ingest.service import check_upload, store_upload
 from ..services.ingest.staging import discard, load_staged, stage
 from ..services.ingest.templates import template_csv, template_xlsx
 from ..services.ingest.units import FORM_UNIT_CHOICES, quantities
-from .api_uploads import jobs_queued, release, xlsx_limits
+from .api_uploads import jobs_queued, release, scope
 from .auth import Analyst, Reader, Uploader
 from .deps import DatabaseDep, SessionDep, SettingsDep
 from .pages import render
@@ -105,8 +105,7 @@ async def upload_check(
                 filename=filename,
                 options=options,
                 replace=replace,
-                xlsx_limits=xlsx_limits(settings),
-                asset_ids=user.asset_ids,
+                **scope(settings, user),
             )
             token = (
                 stage(
@@ -176,8 +175,7 @@ def upload_commit(
         accept_warnings=accept_warnings,
         actor=actor,
         expected_digest=digest,
-        xlsx_limits=xlsx_limits(settings),
-        asset_ids=user.asset_ids,
+        **scope(settings, user),
     )
     if result.status in ("committed", "unchanged"):
         with db.session() as session:
@@ -212,8 +210,7 @@ def upload_report(token: str, session: SessionDep, settings: SettingsDep, user: 
         filename=staged.filename,
         options=ReadOptions.from_dict(staged.options),
         replace=staged.replace,
-        xlsx_limits=xlsx_limits(settings),
-        asset_ids=user.asset_ids,
+        **scope(settings, user),
     )
     report = plan.report.as_dict()
     report["problems"] = [

@@ -1,5 +1,11 @@
 """A real migrated database per test (for tests that need several connections or processes)."""
 
+import os
+import signal
+import subprocess
+import sys
+from pathlib import Path
+
 import pytest
 
 from server.db.migrate import upgrade
@@ -28,3 +34,29 @@ def real_db(request, tmp_path):
         db.dispose()
         if request.param == "postgresql":
             drop_pg_database(url)
+
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+def kill_when(script: str, args: list[str], signal_line: str) -> str:
+    """Run ``python -c script args`` until it prints a line starting with ``signal_line``,
+    then SIGKILL it (a process dying at a controlled point); return that line."""
+    cmd = [sys.executable, "-c", script, *args]
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    with subprocess.Popen(
+        cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=env
+    ) as child:
+        try:
+            line = child.stdout.readline()
+            assert line.startswith(signal_line), (
+                line,
+                child.stderr.read() if child.poll() is not None else "",
+            )
+            child.send_signal(signal.SIGKILL)
+            child.wait(timeout=30)
+        finally:
+            if child.poll() is None:
+                child.kill()
+    assert child.returncode == -signal.SIGKILL
+    return line

@@ -5,22 +5,16 @@ separate process), not the rolled-back test transaction.
 """
 
 import datetime as dt
-import os
-import signal
-import subprocess
-import sys
 import textwrap
 import threading
-from pathlib import Path
 
 from sqlalchemy import func, select
 
 from server.db.models import Estimate, Job, ProductionMonth, Upload
 from server.services import jobs
 from server.services.ingest.service import store_upload
-from tests.services.conftest import N
+from tests.services.conftest import N, kill_when
 
-ROOT = Path(__file__).resolve().parents[2]
 TODAY = dt.date(2026, 12, 1)
 MONTHS = [dt.date(2014 + k // 12, k % 12 + 1, 1) for k in range(36)]
 
@@ -118,20 +112,7 @@ def test_a_process_killed_during_an_import_leaves_the_database_as_it_was(real_db
     path.write_text("\n".join(lines) + "\n")
     with db.session() as s:
         before = s.execute(select(func.count()).select_from(ProductionMonth)).scalar_one()
-    cmd = [sys.executable, "-c", CHILD, url, str(path)]
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    with subprocess.Popen(
-        cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=env
-    ) as child:
-        try:
-            line = child.stdout.readline()
-            assert line.startswith("ROWS WRITTEN 360"), (line, child.stderr.read() if child.poll() else "")
-            child.send_signal(signal.SIGKILL)
-            child.wait(timeout=30)
-        finally:
-            if child.poll() is None:
-                child.kill()
-    assert child.returncode == -signal.SIGKILL
+    kill_when(CHILD, [url, str(path)], "ROWS WRITTEN 360")
     db.dispose()  # fresh connections, as a restarted app would have
     with db.session() as s:
         assert s.execute(select(func.count()).select_from(ProductionMonth)).scalar_one() == before

@@ -1,13 +1,8 @@
 """The job queue: exclusive claims, a dead worker's job taken over, progress, repeats harmless."""
 
 import datetime as dt
-import os
-import signal
-import subprocess
-import sys
 import textwrap
 import time
-from pathlib import Path
 
 from sqlalchemy import func, select, update
 
@@ -15,8 +10,7 @@ from server.db.models import Estimate, Field, Job
 from server.services import jobs
 from server.services.worker import Worker
 from tests.factories import add_volumetric_history, make_field
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests.services.conftest import kill_when
 
 
 def _estimates(session):
@@ -124,19 +118,7 @@ def test_a_killed_worker_process_is_replaced_without_duplicates(real_db):
         for name in ("B", "C"):
             add_volumetric_history(s, make_field(s, name=name))
         job_id = jobs.enqueue_portfolio_recompute(s, reason="test").id
-    cmd = [sys.executable, "-c", KILLED_WORKER, url]
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    with subprocess.Popen(
-        cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=env
-    ) as child:
-        try:
-            line = child.stdout.readline()
-            assert line.startswith("IN SECOND FIELD"), child.stderr.read() if child.poll() else line
-            child.send_signal(signal.SIGKILL)
-            child.wait(timeout=30)
-        finally:
-            if child.poll() is None:
-                child.kill()
+    kill_when(KILLED_WORKER, [url], "IN SECOND FIELD")
     db.dispose()
     with db.session() as s:
         job = s.get(Job, job_id)

@@ -10,23 +10,16 @@ from sqlalchemy import func, select
 
 from server.app import create_app
 from server.db.models import Estimate, Field, PressureSurvey, StagedUpload
-from server.services import jobs
 from server.services.ingest.kinds import UPLOAD_KINDS
 from server.settings import Settings
-from tests.factories import add_volumetric_history, make_field
+from tests.factories import field_with_estimate, make_field
 from tests.web.conftest import make_user, session_client
 
 SURVEY = b"field,well,survey_date,pressure_psia\nUpland,W-2,2017-01-15,1500\n"
 
 
 def _seed(db):
-    with db.session() as s:
-        f = make_field(s, name="Upland")
-        add_volumetric_history(s, f)
-        jobs.enqueue_field_recompute(s, [f.id], reason="test")
-        fid = f.id
-    jobs.drain(db)
-    return fid
+    return field_with_estimate(db)
 
 
 def _token(client):

@@ -140,14 +140,22 @@ def plan_wells(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool
         plan.field_ids.add(f.id)
 
 
-def write_wells(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
-    for c in plan.inserts:
-        w = Well(**c.values)
-        session.add(w)
-        session.flush()
-        _audit_insert(session, actor, upload_id, "well", w.id, w.field_id, c)
-    for c in plan.replacements:
-        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+def _write_rows(model):
+    """A writer for a kind whose rows are one ``model`` row each, carrying ``field_id``."""
+
+    def write(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
+        for c in plan.inserts:
+            row = model(**c.values)
+            session.add(row)
+            session.flush()
+            _audit_insert(session, actor, upload_id, model.__tablename__, row.id, row.field_id, c)
+        for c in plan.replacements:
+            replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+
+    return write
+
+
+write_wells = _write_rows(Well)
 
 
 FLUID_COLUMNS = (
@@ -182,14 +190,7 @@ def plan_fluids(session: Session, parsed: Parsed, plan: UploadPlan, replace: boo
         plan.field_ids.add(f.id)
 
 
-def write_fluids(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
-    for c in plan.inserts:
-        fl = Fluid(**c.values)
-        session.add(fl)
-        session.flush()
-        _audit_insert(session, actor, upload_id, "fluid", fl.id, fl.field_id, c)
-    for c in plan.replacements:
-        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+write_fluids = _write_rows(Fluid)
 
 
 def plan_lab_table(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
@@ -401,14 +402,7 @@ def _mc_inputs(r: dict, report) -> dict | None | bool:
     return out
 
 
-def write_volumetrics(session: Session, plan: UploadPlan, upload_id: int, actor: Actor) -> None:
-    for c in plan.inserts:
-        v = VolumetricEstimate(**c.values)
-        session.add(v)
-        session.flush()
-        _audit_insert(session, actor, upload_id, "volumetric_estimate", v.id, v.field_id, c)
-    for c in plan.replacements:
-        replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.field_id)
+write_volumetrics = _write_rows(VolumetricEstimate)
 
 
 def _audit_insert(
