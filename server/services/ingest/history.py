@@ -161,8 +161,10 @@ def plan_production(session: Session, parsed: Parsed, plan: UploadPlan, replace:
         if col in parsed.columns
     )
     inserts = plan.inserts
+    month_text: dict = {}
     for r, ref in rows:
         month = r["month"]
+        text = month_text.get(month) or month_text.setdefault(month, f"{month:%Y-%m}")
         values = {
             "well_id": ref.well_id,
             "month": month,
@@ -173,7 +175,7 @@ def plan_production(session: Session, parsed: Parsed, plan: UploadPlan, replace:
         change = Change(
             "production_month",
             r["_row"],
-            f"{ref.field_name} / {ref.well_name} / {month:%Y-%m}",
+            f"{ref.field_name} / {ref.well_name} / {text}",
             values,
             ref.field_name,
         )

@@ -246,18 +246,16 @@ def parse_table(
     bad: set[int] = set()
     blank: list[int] = []
     live: list[int] = []
+    text_rows = table.source == "csv"  # every cell a string: one join tells a blank row
     for i, row in enumerate(table.rows):
-        if len(row) != width:
-            if not any(not cells.is_blank(c) for c in row):
-                blank.append(i + 2)
-                continue
+        empty = not "".join(row).strip() if text_rows else all(cells.is_blank(c) for c in row)
+        if empty:
+            blank.append(i + 2)
+        elif len(row) != width:
             report.add(i + 2, None, None, f"has {len(row)} cells but the header has {width}")
             bad.add(i)
-            continue
-        if all(cells.is_blank(c) for c in row):
-            blank.append(i + 2)
-            continue
-        live.append(i)
+        else:
+            live.append(i)
     if blank:
         shown = ", ".join(map(str, blank[:10])) + (" …" if len(blank) > 10 else "")
         report.note(f"{len(blank)} blank row(s) skipped (rows {shown})")
@@ -334,11 +332,9 @@ def _parse_column(m: Mapped, raw: list, live: list[int], decimal: str, rules, q,
                         "warning",
                     )
     if col.type in ("date", "month"):
-        serials = sum(
-            1
-            for c in raw
-            if isinstance(c, int | float) or (isinstance(c, str) and cells._SERIAL.fullmatch(c.strip()))
-        )
+        numbers = {c for c in set(raw) if isinstance(c, str) and cells._SERIAL.fullmatch(c.strip())}
+        native = not all(type(c) is str for c in raw)  # XLSX or JSON cells
+        serials = sum(1 for c in raw if type(c) in (int, float) or c in numbers) if numbers or native else 0
         if serials:
             report.note(
                 f"{header}: {serials} cell(s) read as Excel date serial numbers "
