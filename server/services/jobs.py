@@ -98,6 +98,15 @@ def write_first(session: Session) -> None:
         session.execute(update(Job).where(Job.id < 0).values(status="queued"))
 
 
+def has_work(session: Session, stale_after: dt.timedelta = STALE_AFTER) -> bool:
+    """Whether a job is queued or was left by a dead worker (a read only)."""
+    stale_before = utcnow() - stale_after
+    dead = (Job.status == "running") & (Job.heartbeat_at < stale_before)
+    return (
+        session.execute(select(Job.id).where(or_(Job.status == "queued", dead)).limit(1)).first() is not None
+    )
+
+
 def claim_next(session: Session, worker: str, stale_after: dt.timedelta = STALE_AFTER) -> Job | None:
     """Mark the oldest runnable job as running by ``worker`` and return it."""
     now = utcnow()
@@ -183,6 +192,11 @@ def run_one(db: Database, worker: str | None = None, stale_after: dt.timedelta =
     """Claim and run one job; return False when there is nothing to run."""
     worker = worker or worker_name()
     try:
+        # An idle worker only reads: on SQLite every commit can spoil a concurrent request's
+        # read-then-write transaction, so the claim (a write) happens only when there is work.
+        with db.session() as session:
+            if not has_work(session, stale_after):
+                return False
         with db.session() as session:
             job = claim_next(session, worker, stale_after)
             if job is None:
