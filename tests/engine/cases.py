@@ -1,0 +1,139 @@
+"""Shared inputs for the diagnosis tests: published tables, test oracles, field builders.
+
+Nothing here is an estimator: histories come from the domain reference's tables or from
+the independent forward simulator in server/synthetic/tank.py.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy.interpolate import CubicSpline
+
+from server.engine.inputs import FieldInputs
+from server.engine.pvt import GasFluid, z_factor
+from server.engine.units import GAS_CONSTANT_PSIA_FT3_PER_LBMOL_DEGR
+
+GAS_065 = GasFluid(0.65)
+MONTH_DAYS = 30.4375
+
+# Domain reference §7.5 (check value 27): G1 = 60, G2 = 40 Bscf, Gamma = 0.04241
+# scf/d/(psi^2/cP), pseudo-pressure with LGE viscosity, 20 MMscf/d from tank 1,
+# gamma 0.65 Sutton/DAK, 200 degF, pi = 5000 psia (computed for the reference).
+CV27_T_DAYS = np.array(
+    [0, 183, 366, 548, 731, 914, 1096, 1279, 1461, 1644, 1827, 2009, 2192, 2375, 2557, 2740, 2922], float
+)
+CV27_GP_BSCF = np.array(
+    [
+        0,
+        3.66,
+        7.32,
+        10.96,
+        14.62,
+        18.28,
+        21.92,
+        25.58,
+        29.22,
+        32.88,
+        36.54,
+        40.18,
+        43.84,
+        47.5,
+        51.14,
+        54.8,
+        58.44,
+    ]
+)
+CV27_P1_PSIA = np.array(
+    [5000.00, 4619.99, 4327.51, 4073.86, 3839.21, 3618.29, 3409.06, 3207.33, 3013.98, 2825.80, 2642.86,
+     2465.21, 2290.02, 2117.41, 1947.45, 1777.40, 1608.23]
+)  # fmt: skip
+CV27_P2_PSIA = np.array(
+    [5000.00, 4905.37, 4716.24, 4503.33, 4287.62, 4077.84, 3877.27, 3683.97, 3499.68, 3321.78, 3150.66,
+     2986.59, 2827.19, 2672.85, 2523.93, 2378.39, 2237.53]
+)  # fmt: skip
+CV27_PZ1_PSIA = np.array(
+    [4968.08, 4707.01, 4490.54, 4291.06, 4096.31, 3903.67, 3712.74, 3520.81, 3329.71, 3137.20, 2944.23,
+     2751.79, 2557.69, 2362.91, 2168.40, 1971.89, 1775.36]
+)  # fmt: skip
+
+
+def lge_viscosity_cp(p_psia, t_degF, fluid: GasFluid):
+    """Lee, Gonzalez & Eakin (1966) gas viscosity, transcribed from domain reference §1.7.
+
+    A test oracle for the pseudo-pressure potential (checked against check value 13 in
+    test_tanks.py) until the PVT module provides the correlation.
+    """
+    t_degR = t_degF + 459.67
+    m = 28.9647 * fluid.gas_gravity
+    p = np.asarray(p_psia, float)
+    rho_g_cc = p * m / (z_factor(p, t_degF, fluid) * GAS_CONSTANT_PSIA_FT3_PER_LBMOL_DEGR * t_degR) / 62.428
+    k = (9.4 + 0.02 * m) * t_degR**1.5 / (209 + 19 * m + t_degR)
+    x = 3.5 + 986 / t_degR + 0.01 * m
+    return 1e-4 * k * np.exp(x * rho_g_cc ** (2.4 - 0.2 * x))
+
+
+def pressure_for_pz(pz_psia, t_degF, fluid: GasFluid):
+    """Invert p/z for p by fixed-point iteration p = (p/z) z(p) (z varies slowly)."""
+    target = np.asarray(pz_psia, float)
+    p = target.copy()
+    for _ in range(60):
+        p = target * z_factor(p, t_degF, fluid)
+    return p
+
+
+def field_inputs(
+    t_days,
+    p_psia,
+    ends_days,
+    gas_mscf,
+    *,
+    fluid: GasFluid = GAS_065,
+    t_degF: float = 200.0,
+    pi_psia: float = 5000.0,
+    datum_ft: float = 10000.0,
+    wells=None,
+    compartments=None,
+    by_compartment=(),
+    water_stb=None,
+    quality=None,
+    kind=None,
+    **extra,
+) -> FieldInputs:
+    """FieldInputs with surveys at the datum (absolute pressures) and per-period gas."""
+    t = np.asarray(t_days, float)
+    n = t.size
+    return FieldInputs(
+        fluid=fluid,
+        reservoir_temperature_degF=t_degF,
+        initial_pressure_psia=pi_psia,
+        abandonment_pressure_psia=extra.pop("abandonment_psia", 1000.0),
+        datum_depth_ft=datum_ft,
+        survey_t_days=t,
+        survey_p_psia=np.asarray(p_psia, float),
+        survey_gauge_depth_ft=np.full(n, datum_ft),
+        survey_included=extra.pop("included", np.ones(n, bool)),
+        production_end_t_days=np.asarray(ends_days, float),
+        production_gas_mscf=np.asarray(gas_mscf, float),
+        production_water_stb=None if water_stb is None else np.asarray(water_stb, float),
+        survey_well=tuple(wells) if wells is not None else tuple("W-1" for _ in range(n)),
+        survey_compartment=tuple(compartments) if compartments is not None else (),
+        survey_quality=tuple(quality) if quality is not None else (),
+        survey_kind=tuple(kind) if kind is not None else (),
+        survey_id=tuple(range(1, n + 1)),
+        production_by_compartment=tuple(by_compartment),
+        **extra,
+    )
+
+
+def monthly_ends(years: float) -> np.ndarray:
+    return np.arange(1, int(round(years * 12)) + 1) * MONTH_DAYS
+
+
+def cv27_quarterly(noise_psia: float = 0.0, seed: int = 12345):
+    """The §7.5 history at 33 quarterly surveys (cubic spline in time through the
+    semi-annual table, whose rows are smooth), with Gaussian noise on p/z."""
+    tq = np.arange(33) * 2922.0 / 32
+    pz = CubicSpline(CV27_T_DAYS, CV27_PZ1_PSIA)(tq)
+    pz = pz + np.random.default_rng(seed).normal(0.0, noise_psia, tq.size) if noise_psia else pz
+    ends = np.arange(1, 97) * MONTH_DAYS
+    return field_inputs(tq, pressure_for_pz(pz, 200.0, GAS_065), ends, np.full(ends.size, 20000 * MONTH_DAYS))
