@@ -9,6 +9,7 @@ from server.engine.errors import InputRangeError
 from server.engine.units import FT3_PER_BBL
 from server.engine.volumetrics import (
     BBL_PER_ACRE_FT,
+    VARIABLES,
     Constant,
     Lognormal,
     Triangular,
@@ -93,16 +94,8 @@ def test_monte_carlo_with_one_uncertain_input_returns_its_quantiles():
 
 def test_rank_correlation_is_imposed():
     inp = _inputs(rank_correlations=(("porosity_frac", "gas_saturation_frac", 0.6),))
-    names = (
-        "rock_volume_acre_ft",
-        "net_to_gross_frac",
-        "porosity_frac",
-        "gas_saturation_frac",
-        "bgi_rcf_per_scf",
-    )
-    u = copula_uniforms(
-        normal_correlation_from_rank(inp.rank_correlations, names), 100000, np.random.default_rng(4)
-    )
+    corr = normal_correlation_from_rank(inp.rank_correlations, VARIABLES)
+    u = copula_uniforms(corr, 100000, np.random.default_rng(4))
     rho = stats.spearmanr(inp.porosity_frac.ppf(u[:, 2]), inp.gas_saturation_frac.ppf(u[:, 3])).statistic
     assert rho == pytest.approx(0.6, abs=0.01)
     # positive correlation between porosity and saturation widens the GIIP distribution
