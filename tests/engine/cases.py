@@ -137,3 +137,24 @@ def cv27_quarterly(noise_psia: float = 0.0, seed: int = 12345):
     pz = pz + np.random.default_rng(seed).normal(0.0, noise_psia, tq.size) if noise_psia else pz
     ends = np.arange(1, 97) * MONTH_DAYS
     return field_inputs(tq, pressure_for_pz(pz, 200.0, GAS_065), ends, np.full(ends.size, 20000 * MONTH_DAYS))
+
+
+def surveys_from_history(hist, wells, *, pi_psia, noise_psi, seed, end_days=None):
+    """Survey times and pressures per well from a synthetic TankHistory.
+
+    ``wells`` lists (name, compartment, first_day, tank, every_days, bias_psi); tank 1 or 2
+    picks the simulated pressure the well sees. Returns (t, p, names, compartments) sorted
+    by time.
+    """
+    rng = np.random.default_rng(seed)
+    grid = np.concatenate([[0.0], hist.t_days])
+    end = hist.t_days[-1] if end_days is None else end_days
+    rows = []
+    for name, comp, first, tank, every, bias in wells:
+        t = np.arange(first, end, every)
+        series = hist.p1_psia if tank == 1 else hist.p2_psia
+        p = np.interp(t, grid, np.concatenate([[pi_psia], series])) + bias + rng.normal(0, noise_psi, t.size)
+        rows += [(float(ti), float(pi), name, comp) for ti, pi in zip(t, p, strict=True)]
+    rows.sort(key=lambda r: r[0])
+    t, p, names, comps = zip(*rows, strict=True)
+    return np.array(t), np.array(p), list(names), list(comps)
