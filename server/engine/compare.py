@@ -292,3 +292,42 @@ def _statement(rows, comparable_delta: float) -> str:
     else:
         text += f"; the next model is {rows[1].delta_aicc:.1f} AICc units behind" if len(rows) > 1 else ""
     return text + "."
+
+
+@dataclass(frozen=True)
+class CurvatureTest:
+    """Weighted quadratic p/z = c0 + c1 Gp + c2 Gp^2: is the bend significant?
+
+    c2 < 0 (concave down) is the overpressure shape; c2 > 0 (concave up) that of aquifer
+    support or a connected neighbour (domain reference §2.4, §4.3). Curvature alone does
+    not tell the mechanism.
+    """
+
+    c2_psia_per_bscf2: float
+    se_psia_per_bscf2: float
+    t_statistic: float
+    p_value: float  # two-sided
+    n_obs: int
+
+
+def curvature_test(gp_bscf, pz_psia, weights=None) -> CurvatureTest | None:
+    """t-test of the quadratic term of p/z against Gp; None with fewer than 5 points."""
+    x = np.asarray(gp_bscf, float)
+    y = np.asarray(pz_psia, float)
+    w = np.ones_like(x) if weights is None else np.asarray(weights, float)
+    if x.size < 5 or np.ptp(x) <= 0:
+        return None
+    scale = float(np.max(np.abs(x)))
+    a = np.column_stack([np.ones_like(x), x / scale, (x / scale) ** 2]) * np.sqrt(w)[:, None]
+    coef, *_ = np.linalg.lstsq(a, y * np.sqrt(w), rcond=None)
+    r = y * np.sqrt(w) - a @ coef
+    dof = x.size - 3
+    s2 = float(r @ r) / dof
+    cov = s2 * np.linalg.inv(a.T @ a)
+    c2, se = coef[2] / scale**2, math.sqrt(max(cov[2, 2], 0.0)) / scale**2
+    if se == 0:
+        return CurvatureTest(
+            float(c2), 0.0, math.copysign(math.inf, c2) if c2 else 0.0, 0.0 if c2 else 1.0, x.size
+        )
+    t = c2 / se
+    return CurvatureTest(float(c2), float(se), float(t), float(2 * stats.t.sf(abs(t), dof)), int(x.size))

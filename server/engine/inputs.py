@@ -11,8 +11,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .flags import FlagThresholds
 from .pvt import GasFluid
 from .units import OILFIELD_60F, StandardConditions
+from .volumetrics import VolumetricResult
 
 Z_METHODS = ("dak", "hall_yarborough")
 PSEUDO_CRITICAL_METHODS = ("sutton", "standing_natural_gas", "standing_condensate")
@@ -87,6 +89,8 @@ class FieldInputs:
     lab_table: LabTable | None = None
     choices: AnalysisChoices = field(default_factory=AnalysisChoices)
     standard_conditions: StandardConditions = OILFIELD_60F
+    volumetric: VolumetricResult | None = None  # the static estimate the flags compare with
+    flag_thresholds: FlagThresholds = field(default_factory=FlagThresholds)
 
     @property
     def n_surveys(self) -> int:

@@ -46,6 +46,16 @@ class PotentialTable:
     name: str = "pressure_squared"
 
     @property
+    def slopes(self) -> tuple[float, ...]:
+        """dPhi/d(p/z) on each interval (cached: the simulator reads it every call)."""
+        cached = self.__dict__.get("_slopes")
+        if cached is None:
+            phi = self.phi_psi2
+            cached = tuple((b - a) / self.step_psia for a, b in zip(phi[:-1], phi[1:], strict=True))
+            object.__setattr__(self, "_slopes", cached)
+        return cached
+
+    @property
     def pz_max_psia(self) -> float:
         return self.pz0_psia + self.step_psia * (len(self.phi_psi2) - 1)
 
@@ -171,24 +181,28 @@ def simulate_star_tanks(
 
 def _simulate_two(g0, g1, gam, pzi, pot: PotentialTable, step_days, withdrawal_scf):
     """The two-tank case of :func:`simulate_star_tanks`, inlined: a fit calls it often."""
-    phi = pot.phi_psi2
-    slope = [(b - a) / pot.step_psia for a, b in zip(phi[:-1], phi[1:], strict=True)]
-    inv_h = 1.0 / pot.step_psia
+    phi, slope = pot.phi_psi2, pot.slopes
+    h = pot.step_psia
+    inv_h = 1.0 / h
     x0 = pot.pz0_psia
     last = len(phi) - 2
     expm1 = math.expm1
     k0, k1 = pzi / g0, pzi / g1
     u0 = u1 = 1.0
-    out = [[1.0, 1.0]]
+    out = [(1.0, 1.0)]
     for dt, (w0, w1) in zip(step_days, withdrawal_scf, strict=True):
         x = (pzi * u0 - x0) * inv_h
-        i = min(int(x), last) if x > 0.0 else 0
+        i = int(x) if x > 0.0 else 0
+        if i > last:
+            i = last
         d0 = slope[i]
-        p0 = phi[i] + d0 * (x - i) * pot.step_psia
+        p0 = phi[i] + d0 * (x - i) * h
         x = (pzi * u1 - x0) * inv_h
-        i = min(int(x), last) if x > 0.0 else 0
+        i = int(x) if x > 0.0 else 0
+        if i > last:
+            i = last
         d1 = slope[i]
-        p1 = phi[i] + d1 * (x - i) * pot.step_psia
+        p1 = phi[i] + d1 * (x - i) * h
         diff = (p1 if p1 > 0.0 else 0.0) - (p0 if p0 > 0.0 else 0.0)
         a = gam * dt
         for corrector in (False, True):  # slopes at the start, then at the predicted midpoint
@@ -198,19 +212,22 @@ def _simulate_two(g0, g1, gam, pzi, pot: PotentialTable, step_days, withdrawal_s
                 f2 = 0.5 - lam / 6.0 + lam * lam / 24.0
             else:
                 e = -expm1(-lam)
-                f1, f2 = e / lam, (lam - e) / (lam * lam)
+                f1 = e / lam
+                f2 = (lam - e) / (lam * lam)
             s = a * (f1 * diff + f2 * (d0 * k0 * w0 - d1 * k1 * w1))
             m0 = u0 + (s - w0) / g0
             m1 = u1 - (s + w1) / g1
             if corrector:
                 break
             x = (pzi * 0.5 * (u0 + m0) - x0) * inv_h
-            d0 = slope[min(int(x), last) if x > 0.0 else 0]
+            i = int(x) if x > 0.0 else 0
+            d0 = slope[i if i <= last else last]
             x = (pzi * 0.5 * (u1 + m1) - x0) * inv_h
-            d1 = slope[min(int(x), last) if x > 0.0 else 0]
+            i = int(x) if x > 0.0 else 0
+            d1 = slope[i if i <= last else last]
         u0 = m0 if m0 > 0.0 else 0.0
         u1 = m1 if m1 > 0.0 else 0.0
-        out.append([u0, u1])
+        out.append((u0, u1))
     return out
 
 

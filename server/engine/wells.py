@@ -19,10 +19,12 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from .prepare import PreparedData
+if TYPE_CHECKING:
+    from .prepare import PreparedData
 
 MAD_TO_SIGMA = 1.4826  # normal consistency of the median absolute deviation
 SIGMA_FLOOR_PSIA = 1.0  # perfect synthetic data must not give a zero noise
@@ -181,7 +183,7 @@ def _reason(well, med, sigma, n, beyond, near, disagrees, pzi, ratio) -> str:
     )
     if near:
         text += (
-            f"; it reads near the initial p/z of {pzi:.0f} psia, having seen {100 * max(ratio, 0.0):.0f} % of "
-            "the others' depletion"
+            f"; it reads near the initial p/z of {pzi:.0f} psia, having seen "
+            f"{100 * max(ratio, 0.0):.0f} % of the others' depletion"
         )
     return text if disagrees else text + " — within what noise explains"

@@ -158,3 +158,48 @@ def surveys_from_history(hist, wells, *, pi_psia, noise_psi, seed, end_days=None
     rows.sort(key=lambda r: r[0])
     t, p, names, comps = zip(*rows, strict=True)
     return np.array(t), np.array(p), list(names), list(comps)
+
+
+def demo_field_inputs(name: str) -> FieldInputs:
+    """A demo field's inputs built the way services/recompute.py builds them from rows,
+    without a database (the service path is tested separately)."""
+    from server.services.demo import PORTFOLIO, build_field_history
+    from server.services.timebase import days_from_date, month_end_exclusive
+    from server.engine.volumetrics import volumetric_range
+
+    i, spec = next((i, s) for i, s in enumerate(PORTFOLIO) if s.name == name)
+    hist = build_field_history(spec, seed=1000 + i)
+    comp = {w.name: w.compartment for w in spec.wells}
+    months = sorted({m for _, m, *_ in hist["production"]})
+    index = {m: k for k, m in enumerate(months)}
+    gas, water = np.zeros(len(months)), np.zeros(len(months))
+    by_comp: dict[str, np.ndarray] = {}
+    for well, m, g, _, wat in hist["production"]:
+        gas[index[m]] += round(g, 1)
+        water[index[m]] += round(wat, 1)
+        if comp[well] is not None:
+            by_comp.setdefault(comp[well], np.zeros(len(months)))[index[m]] += round(g, 1)
+    surveys = sorted(hist["surveys"], key=lambda s: (s[1], s[0]))
+    fluid = GasFluid(spec.gravity, spec.co2, spec.h2s, spec.n2)
+    return FieldInputs(
+        fluid=fluid,
+        reservoir_temperature_degF=spec.t_degF,
+        initial_pressure_psia=spec.pi_psia,
+        abandonment_pressure_psia=spec.abandonment_psia,
+        datum_depth_ft=spec.datum_ft,
+        survey_t_days=np.array([days_from_date(s[1]) for s in surveys]),
+        survey_p_psia=np.array([s[2] for s in surveys]),
+        survey_gauge_depth_ft=np.array([s[3] for s in surveys]),
+        survey_included=np.ones(len(surveys), bool),
+        production_end_t_days=np.array([days_from_date(month_end_exclusive(m)) for m in months]),
+        production_gas_mscf=gas,
+        production_water_stb=water,
+        survey_well=tuple(s[0] for s in surveys),
+        survey_compartment=tuple(comp[s[0]] for s in surveys),
+        survey_quality=tuple(s[5] for s in surveys),
+        survey_kind=tuple(s[4] for s in surveys),
+        survey_id=tuple(range(1, len(surveys) + 1)),
+        production_by_compartment=tuple(sorted(by_comp.items())),
+        condensate_api=spec.api,
+        volumetric=volumetric_range(*spec.volumetric),
+    )

@@ -1,0 +1,116 @@
+"""Flags: what a reserves engineer should look at in a field, with the reason and numbers.
+
+This module holds the contract (thresholds, the flag, the evidence the rules read); the
+rules are in :mod:`.flag_rules`. Each flag has a stable ``code``, a ``severity`` ("info",
+"warning", "alert": alert means the booked number is likely to mislead), a short title, a
+plain-language reason that quotes the numbers behind it, and those numbers. The rules and every threshold are
+documented in docs/flags.md; the thresholds are :class:`FlagThresholds`.
+
+The rules weigh evidence rather than trust one test: curvature of p/z alone does not
+tell aquifer support from a connected neighbour (domain reference §4.3), and a pot
+aquifer and rock/water expansion give the same balance, so each mechanism needs its
+own discriminating evidence (water production, pressures of different wells, the
+initial pressure gradient).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # annotations only: inputs.py imports this module
+    from .compare import CurvatureTest, ModelComparison
+    from .volumetrics import VolumetricResult
+    from .wells import WellFinding
+
+SEVERITIES = ("info", "warning", "alert")
+
+
+@dataclass(frozen=True)
+class FlagThresholds:
+    """Every threshold the flags use, with its default (see docs/flags.md)."""
+
+    min_depletion_frac: float = 0.10  # p/z fall below this: too little depletion to judge
+    min_surveys: int = 3  # included surveys needed to judge anything
+    model_preference_delta_aicc: float = 10.0  # a mechanism model must beat the single tank by this
+    comparable_delta_aicc: float = 2.0  # models closer than this to the best fit comparably
+    overpressure_gradient_psi_per_ft: float = 0.55  # initial pressure / datum depth
+    curvature_p_value: float = 0.01  # significance of the p/z bend
+    cole_p_value: float = 0.01  # significance of a Cole-plot trend
+    water_rise_factor: float = 3.0  # late / early water-gas ratio
+    water_rise_min_stb_per_mmscf: float = 5.0  # and the late ratio at least this
+    well_disagreement_sigma: float = 4.0  # median offset of a well in noise widths
+    well_min_points: int = 2  # surveys of a well beyond that, on the same side
+    near_initial_ratio: float = 0.25  # a well that has seen at most this share of the others' fall
+    outlier_sigma: float = 4.0  # a survey this many noise widths off the trend is an outlier
+    above_initial_sigma: float = 3.0  # a survey above pi by this many noise widths ...
+    above_initial_min_psia: float = 25.0  # ... and by at least this much
+    survey_gap_days: float = 3 * 365.25  # no survey for this long while producing
+    production_gap_days: float = 62.0  # a production period longer than this (missing months)
+    max_scatter_frac: float = 0.01  # survey noise on p/z above this share of the initial p/z
+
+
+@dataclass(frozen=True)
+class Flag:
+    code: str
+    severity: str
+    title: str
+    reason: str
+    numbers: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class ColeTrend:
+    """Trend of the Cole plot F/Eg against Gp (from the aquifer analysis)."""
+
+    slope_bscf_per_bscf: float
+    p_value: float
+    first_bscf: float  # F/Eg at the first and last points used
+    last_bscf: float
+
+
+@dataclass(frozen=True)
+class WaterTrend:
+    early_wgr_stb_per_mmscf: float
+    late_wgr_stb_per_mmscf: float
+
+
+@dataclass(frozen=True)
+class Outlier:
+    well: str
+    t_days: float
+    offset_psia: float
+    sigmas: float
+    kind: str
+    quality: str
+
+
+@dataclass(frozen=True)
+class Evidence:
+    """Everything the flag rules read, gathered by :mod:`.diagnosis`."""
+
+    n_surveys: int
+    initial_pz_psia: float
+    initial_pressure_psia: float
+    datum_depth_ft: float
+    overpressure_mode: str
+    depletion_frac: float | None  # 1 - (p/z at the last survey on the trend) / initial p/z
+    dynamic_method: str | None
+    dynamic_giip_bscf: float | None
+    dynamic_low_bscf: float | None
+    dynamic_high_bscf: float | None
+    volumetric: VolumetricResult | None
+    comparison: ModelComparison | None
+    curvature: CurvatureTest | None
+    wells: tuple[WellFinding, ...] = ()
+    water: WaterTrend | None = None
+    cole: ColeTrend | None = None
+    noise_psia: float | None = None
+    outliers: tuple[Outlier, ...] = ()
+    above_initial: tuple[tuple[str, float, float], ...] = ()  # (well, t_days, p_datum_psia)
+    longest_survey_gap_days: float | None = None
+    longest_production_period_days: float | None = None
+
+    @property
+    def gradient_psi_per_ft(self) -> float | None:
+        return self.initial_pressure_psia / self.datum_depth_ft if self.datum_depth_ft > 0 else None
