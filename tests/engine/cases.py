@@ -163,9 +163,9 @@ def surveys_from_history(hist, wells, *, pi_psia, noise_psi, seed, end_days=None
 def demo_field_inputs(name: str) -> FieldInputs:
     """A demo field's inputs built the way services/recompute.py builds them from rows,
     without a database (the service path is tested separately)."""
+    from server.engine.volumetrics import volumetric_range
     from server.services.demo import PORTFOLIO, build_field_history
     from server.services.timebase import days_from_date, month_end_exclusive
-    from server.engine.volumetrics import volumetric_range
 
     i, spec = next((i, s) for i, s in enumerate(PORTFOLIO) if s.name == name)
     hist = build_field_history(spec, seed=1000 + i)
