@@ -211,7 +211,8 @@ def compartment_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag
     two, gain = _best_other(ev, th, "two_tank", identifiable=True) if judge else (None, None)
     if two is None and judge:
         two, gain = _best_other(ev, th, "multi_tank", identifiable=True)
-    if not odd and two is None:
+    # Rising water explains extra support as well as a neighbour does (domain reference §4.3).
+    if not odd and (two is None or _water_rising(ev, th)):
         return None
     parts, numbers = [], {}
     for f in odd:

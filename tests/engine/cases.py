@@ -203,3 +203,37 @@ def demo_field_inputs(name: str) -> FieldInputs:
         condensate_api=spec.api,
         volumetric=volumetric_range(*spec.volumetric),
     )
+
+
+def synthetic_field(
+    spec,
+    *,
+    years: float,
+    rate_mscf_d: float,
+    wells,
+    noise_psi: float,
+    seed: int,
+    volumetric=None,
+    datum_ft: float = 10000.0,
+    water_base_stb_per_mmscf: float = 1.0,
+    water_per_mmrb_influx: float = 40.0,
+):
+    """FieldInputs from the forward simulator: constant-rate monthly production, surveys
+    per well (see surveys_from_history), water production rising with the simulated
+    influx (a test scenario: base WGR plus a share proportional to We)."""
+    from server.synthetic.tank import simulate
+
+    ends = monthly_ends(years)
+    hist = simulate(spec, ends, np.full(ends.size, rate_mscf_d))
+    t, p, names, comps = surveys_from_history(
+        hist, wells, pi_psia=spec.initial_pressure_psia, noise_psi=noise_psi, seed=seed
+    )
+    gas = np.full(ends.size, rate_mscf_d * MONTH_DAYS)
+    water = gas / 1e3 * (water_base_stb_per_mmscf + water_per_mmrb_influx * hist.we_rb / 1e6)
+    labelled = [c for c in comps if c]
+    by_comp = (("West", gas),) if labelled else ()
+    return field_inputs(
+        t, p, ends, gas, fluid=spec.fluid, t_degF=spec.temperature_degF, pi_psia=spec.initial_pressure_psia,
+        datum_ft=datum_ft, wells=names, compartments=comps if labelled else None, by_compartment=by_comp,
+        water_stb=water, volumetric=volumetric,
+    )  # fmt: skip

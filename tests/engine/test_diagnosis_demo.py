@@ -1,0 +1,52 @@
+"""The demo portfolio's fields are flagged for the reasons their stories give, and the
+clean ones are not (engine level; the pages are tested in tests/web and tests/browser).
+
+Hollinsway (rich condensate) is left out until the prepare stage applies the wet-gas
+correction: without it its p/z bends and the two-tank model fits better.
+"""
+
+import pytest
+
+from server.engine.diagnosis import diagnose_field
+from server.engine.prepare import prepare
+from tests.engine.cases import demo_field_inputs
+
+
+def _flags(name):
+    inputs = demo_field_inputs(name)
+    return {f.code: f for f in diagnose_field(inputs, prepare(inputs)).flags}
+
+
+@pytest.mark.parametrize("name", ["Amberlode", "Brackenhold", "Ivorcombe", "Juniper Knoll", "Lowmarsh Deep"])
+def test_clean_fields_are_not_flagged(name):
+    assert _flags(name) == {}
+
+
+def test_fallowmere_aquifer():
+    flags = _flags("Fallowmere")
+    assert set(flags) == {"aquifer_signature"}
+    assert "water-gas ratio rose" in flags["aquifer_signature"].reason
+
+
+def test_gorsewick_compartments_with_the_late_well_near_initial():
+    flags = _flags("Gorsewick")
+    assert set(flags) == {"compartment_signature"}
+    f = flags["compartment_signature"]
+    assert f.severity == "alert" and "GRW-3" in f.reason and "near the initial p/z" in f.reason
+
+
+def test_emberline_overpressure():
+    flags = _flags("Emberline")
+    assert set(flags) == {"overpressure_signature"}
+    assert "0.66 psi/ft" in flags["overpressure_signature"].reason
+
+
+def test_dunmarrow_too_little_depletion():
+    assert set(_flags("Dunmarrow")) == {"too_little_depletion"}
+
+
+def test_cindervale_bad_buildup_survey():
+    flags = _flags("Cindervale")
+    assert set(flags) == {"data_outliers"}
+    reason = flags["data_outliers"].reason
+    assert reason.startswith("1 survey(s)") and "CDV-1" in reason and "buildup, poor" in reason
