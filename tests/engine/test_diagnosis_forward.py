@@ -33,8 +33,9 @@ def _within_interval(row, truth):
 @pytest.mark.parametrize("seed", [1, 2, 3])
 def test_volumetric_field_with_noise_is_not_flagged(seed):
     spec = TankSpec(100.0, 5000.0, 200.0, GAS_065)
-    inputs = synthetic_field(spec, years=10, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=12.0, seed=seed,
-                             volumetric=VOL_100)  # fmt: skip
+    inputs = synthetic_field(
+        spec, years=10, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=12.0, seed=seed, volumetric=VOL_100
+    )
     d, flags = _diagnose(inputs)
     assert flags == set()
     single = d.comparison.row("single_tank")
@@ -46,8 +47,9 @@ def test_volumetric_field_with_noise_is_not_flagged(seed):
 def test_hidden_neighbour_across_a_leaky_fault():
     # G1 = 60 (wells), G2 = 40 Bscf, Gamma' = 1.5 scf/d/psi^2; no compartment labels.
     spec = TankSpec(60.0, 5000.0, 200.0, GAS_065, second_tank=SecondTank(40.0, 1.5))
-    inputs = synthetic_field(spec, years=8, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=10.0, seed=4,
-                             volumetric=VOL_100)  # fmt: skip
+    inputs = synthetic_field(
+        spec, years=8, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=10.0, seed=4, volumetric=VOL_100
+    )
     d, flags = _diagnose(inputs)
     assert flags == {"compartment_signature"}
     assert d.comparison.preferred == "two_tank"
@@ -58,10 +60,14 @@ def test_hidden_neighbour_across_a_leaky_fault():
 
 def test_late_well_in_a_labelled_compartment_reads_near_initial():
     spec = TankSpec(58.0, 5000.0, 205.0, GAS_065, second_tank=SecondTank(42.0, 0.06))
-    wells = [("W-1", "West", 45.0, 1, 270.0, 0.0), ("W-2", "West", 300.0, 1, 270.0, 0.0),
-             ("E-1", "East", 8 * 365.25, 2, 270.0, 0.0)]  # fmt: skip
-    inputs = synthetic_field(spec, years=12, rate_mscf_d=12000.0, wells=wells, noise_psi=12.0, seed=5,
-                             volumetric=VOL_100)  # fmt: skip
+    wells = [
+        ("W-1", "West", 45.0, 1, 270.0, 0.0),
+        ("W-2", "West", 300.0, 1, 270.0, 0.0),
+        ("E-1", "East", 8 * 365.25, 2, 270.0, 0.0),
+    ]
+    inputs = synthetic_field(
+        spec, years=12, rate_mscf_d=12000.0, wells=wells, noise_psi=12.0, seed=5, volumetric=VOL_100
+    )
     d, flags = _diagnose(inputs)
     assert "compartment_signature" in flags and not flags & {"aquifer_signature", "overpressure_signature"}
     flag = next(f for f in d.flags if f.code == "compartment_signature")
@@ -74,8 +80,16 @@ def test_overpressured_field_is_flagged_for_overpressure_only():
     # Domain reference §7.4 truth: G = 100 Bscf, pi = 9000 psia, ce = 14.33e-6 1/psi, at a
     # datum of 13,600 ft (0.66 psi/ft).
     spec = TankSpec(100.0, 9000.0, 200.0, GAS_065, ce_per_psi=14.33e-6)
-    inputs = synthetic_field(spec, years=6, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=12.0, seed=6,
-                             volumetric=VOL_100, datum_ft=13600.0)  # fmt: skip
+    inputs = synthetic_field(
+        spec,
+        years=6,
+        rate_mscf_d=20000.0,
+        wells=THREE_WELLS,
+        noise_psi=12.0,
+        seed=6,
+        volumetric=VOL_100,
+        datum_ft=13600.0,
+    )
     d, flags = _diagnose(inputs)
     assert "overpressure_signature" in flags
     assert not flags & {"aquifer_signature", "compartment_signature", "too_little_depletion"}
@@ -96,8 +110,9 @@ def test_overpressured_field_is_flagged_for_overpressure_only():
 def test_aquifer_support_with_rising_water(aquifer):
     # Pot: domain reference §7.3 (ct Wi = 180 bbl/psi); Fetkovich: the demo's strength.
     spec = TankSpec(100.0, 5000.0, 200.0, GAS_065, aquifer=aquifer)
-    inputs = synthetic_field(spec, years=10, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=12.0, seed=7,
-                             volumetric=VOL_100)  # fmt: skip
+    inputs = synthetic_field(
+        spec, years=10, rate_mscf_d=20000.0, wells=THREE_WELLS, noise_psi=12.0, seed=7, volumetric=VOL_100
+    )
     d, flags = _diagnose(inputs)
     assert "aquifer_signature" in flags
     assert not flags & {"compartment_signature", "overpressure_signature"}
@@ -106,8 +121,16 @@ def test_aquifer_support_with_rising_water(aquifer):
 
 def test_young_field_is_too_little_depleted_to_judge():
     spec = TankSpec(210.0, 5200.0, 215.0, GAS_065, second_tank=SecondTank(60.0, 0.5))
-    inputs = synthetic_field(spec, years=1.5, rate_mscf_d=30000.0, wells=THREE_WELLS[:2], noise_psi=12.0, seed=8,
-                             volumetric=volumetric_range(170.0, 205.0, 250.0), datum_ft=11200.0)  # fmt: skip
+    inputs = synthetic_field(
+        spec,
+        years=1.5,
+        rate_mscf_d=30000.0,
+        wells=THREE_WELLS[:2],
+        noise_psi=12.0,
+        seed=8,
+        volumetric=volumetric_range(170.0, 205.0, 250.0),
+        datum_ft=11200.0,
+    )
     _, flags = _diagnose(inputs)
     assert flags == {"too_little_depletion"}
 
