@@ -101,10 +101,12 @@ def test_star_of_two_identical_neighbours_equals_one_neighbour_twice_as_big():
     assert three[:, 1] == pytest.approx(two[:, 1], abs=1e-9)
 
 
-@pytest.mark.parametrize("dt_days", [MONTH_DAYS, 3 * MONTH_DAYS])
-def test_simulator_agrees_with_the_independent_forward_model(dt_days):
+@pytest.mark.parametrize(
+    ("dt_days", "tol_psia"), [(MONTH_DAYS, 0.3), (3 * MONTH_DAYS, 0.3), (6 * MONTH_DAYS, 1.0)]
+)
+def test_simulator_agrees_with_the_independent_forward_model(dt_days, tol_psia):
     # server/synthetic/tank.py steps the same physics explicitly (daily here); our
-    # linearised-exponential steps of one or three months must agree far inside survey noise.
+    # linearised-exponential steps of one to six months must agree far inside survey noise.
     spec = TankSpec(60.0, 5000.0, 200.0, GAS_065, second_tank=SecondTank(40.0, 1.5))
     days = np.arange(1.0, 2923.0)
     ref = simulate(spec, days, np.full(days.size, 20000.0))
@@ -113,7 +115,7 @@ def test_simulator_agrees_with_the_independent_forward_model(dt_days):
     t = np.arange(1, n + 1) * dt_days
     for k, p_ref in ((0, ref.p1_psia), (1, ref.p2_psia)):
         pz_ref = np.interp(t, days, p_ref / _z(p_ref))
-        assert np.max(np.abs(PZI * u[1:, k] - pz_ref)) < 0.3  # psia
+        assert np.max(np.abs(PZI * u[1:, k] - pz_ref)) < tol_psia
 
 
 def test_check_value_27_inputs_and_single_tank_apparent_giip():
