@@ -367,11 +367,14 @@ def demo_is_loaded(session: Session) -> bool:
     return session.execute(select(Field.id).limit(1)).first() is not None
 
 
-def load_demo(session: Session) -> list[int]:
-    """Insert the demo portfolio (in the caller's transaction) and queue its recomputes."""
+def load_demo(session: Session, specs: tuple[DemoField, ...] = PORTFOLIO) -> list[int]:
+    """Insert the demo portfolio (in the caller's transaction) and queue its recomputes.
+
+    ``specs`` defaults to the demo's fields; the portfolio benchmark passes many variants.
+    """
     assets: dict[str, Asset] = {}
     field_ids = []
-    for i, spec in enumerate(PORTFOLIO):
+    for i, spec in enumerate(specs):
         asset = assets.get(spec.asset)
         if asset is None:
             asset = session.execute(select(Asset).where(Asset.name == spec.asset)).scalar_one_or_none()

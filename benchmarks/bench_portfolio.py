@@ -1,0 +1,137 @@
+"""Benchmark: recompute a 200-field portfolio on both cores.
+
+Target (issue 4): under 60 s with two worker processes. The portfolio is the demo's
+twelve field stories repeated with varied size, rate and noise (200 fields, about 4 years
+to 17 years of monthly production each), loaded into a fresh database. Each worker
+process opens its own connection and recomputes its share of the fields through the real
+service path (load rows, analyse, store the estimate). The baseline, measured in the same
+run, is the serial time per field (load and analyse, nothing stored) on ten fields; the
+report gives the parallel wall time, the speed-up against 200 serial fields, and the
+target verdict.
+
+Run: .venv/bin/python benchmarks/bench_portfolio.py [--fields 200] [--workers 2]
+     [--database-url URL]   (default: a temporary PostgreSQL database, dropped afterwards;
+                             or a temporary SQLite file with --sqlite)
+"""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import tempfile
+import time
+import uuid
+from concurrent.futures import ProcessPoolExecutor
+
+import numpy as np
+import sqlalchemy as sa
+
+from server.db.migrate import upgrade
+from server.db.models import Estimate, Field, Job
+from server.db.session import Database
+from server.engine.analysis import analyse_field
+from server.services.demo import PORTFOLIO, load_demo
+from server.services.recompute import load_field_inputs, recompute_field
+
+TARGET_S = 60.0
+PG_ADMIN = "postgresql+psycopg://postgres@127.0.0.1:5432/postgres"
+
+
+def variants(n: int, seed: int = 7):
+    """n demo fields: the twelve stories with size, rate and noise varied by up to 25 %."""
+    rng = np.random.default_rng(seed)
+    out = []
+    for i in range(n):
+        base = PORTFOLIO[i % len(PORTFOLIO)]
+        f = rng.uniform(0.8, 1.25)
+        out.append(
+            dataclasses.replace(
+                base,
+                name=f"{base.name} {i // len(PORTFOLIO) + 1:02d}",
+                asset=f"{base.asset} {i // 50 + 1}",
+                giip_bscf=base.giip_bscf * f,
+                plateau_mmscf_d=base.plateau_mmscf_d * f * rng.uniform(0.9, 1.1),
+                volumetric=tuple(v * f for v in base.volumetric),
+                noise_psi=base.noise_psi * rng.uniform(0.8, 1.2),
+                second_tank=(
+                    dataclasses.replace(base.second_tank, giip_bscf=base.second_tank.giip_bscf * f)
+                    if base.second_tank
+                    else None
+                ),
+            )
+        )
+    return tuple(out)
+
+
+def _recompute_share(url: str, ids: list[int]) -> int:
+    db = Database(url)
+    for fid in ids:
+        with db.session() as s:
+            recompute_field(s, s.get(Field, fid))
+    db.dispose()
+    return len(ids)
+
+
+def _temporary_database(sqlite: bool):
+    if sqlite:
+        path = tempfile.mkdtemp(prefix="tb_bench_")
+        return f"sqlite:///{path}/portfolio.sqlite3", lambda: None
+    name = f"tb_bench_{uuid.uuid4().hex[:10]}"
+    admin = sa.create_engine(PG_ADMIN, isolation_level="AUTOCOMMIT")
+    with admin.connect() as c:
+        c.execute(sa.text(f'CREATE DATABASE "{name}"'))
+    url = sa.engine.make_url(PG_ADMIN).set(database=name).render_as_string(hide_password=False)
+
+    def drop():
+        with admin.connect() as c:
+            c.execute(sa.text(f'DROP DATABASE IF EXISTS "{name}" WITH (FORCE)'))
+        admin.dispose()
+
+    return url, drop
+
+
+def main() -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--fields", type=int, default=200)
+    ap.add_argument("--workers", type=int, default=2)
+    ap.add_argument("--database-url")
+    ap.add_argument("--sqlite", action="store_true", help="use a temporary SQLite file")
+    args = ap.parse_args()
+    url, drop = (args.database_url, lambda: None) if args.database_url else _temporary_database(args.sqlite)
+    try:
+        upgrade(url)
+        db = Database(url)
+        t0 = time.perf_counter()
+        with db.session() as s:
+            ids = load_demo(s, variants(args.fields))
+            s.execute(sa.delete(Job))  # the benchmark runs the recomputes itself
+        print(f"loaded {len(ids)} fields in {time.perf_counter() - t0:.1f} s ({url.split('://')[0]})")
+        t0 = time.perf_counter()
+        sample = ids[:10]
+        for fid in sample:
+            with db.session() as s:
+                analyse_field(load_field_inputs(s, s.get(Field, fid)))
+        serial_per_field = (time.perf_counter() - t0) / len(sample)
+        shares = [ids[k :: args.workers] for k in range(args.workers)]
+        t0 = time.perf_counter()
+        with ProcessPoolExecutor(args.workers) as pool:
+            done = sum(pool.map(_recompute_share, [url] * args.workers, shares))
+        wall = time.perf_counter() - t0
+        with db.session() as s:
+            stored = s.execute(sa.select(sa.func.count(Estimate.id))).scalar_one()
+            ok = s.execute(sa.select(sa.func.count(Estimate.id)).where(Estimate.status == "ok")).scalar_one()
+        db.dispose()
+    finally:
+        drop()
+    projected = serial_per_field * len(ids)
+    n = len(ids)
+    print(f"baseline: {serial_per_field:.3f} s per field serially (10 fields) -> {projected:.1f} s for {n}")
+    print(f"recomputed {done} fields, {args.workers} workers: {wall:.1f} s; {stored} estimates ({ok} ok)")
+    print(f"speed-up against serial: {projected / wall:.2f}x; ratio wall/serial {wall / projected:.2f}")
+    verdict = "met" if wall < TARGET_S else "NOT met"
+    print(f"target {TARGET_S:.0f} s: {verdict}")
+    return 0 if wall < TARGET_S else 1
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
