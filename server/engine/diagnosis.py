@@ -32,6 +32,8 @@ Fitter = Callable[[FieldInputs, PreparedData], "ModelFit | Sequence[ModelFit]"]
 
 @dataclass(frozen=True)
 class Diagnosis:
+    gp_bscf: np.ndarray  # the included surveys every model is fitted to, in their order
+    pz_psia: np.ndarray
     models: tuple[ModelFit, ...]
     skipped: tuple[tuple[str, str], ...]  # (model, why it was not fitted)
     comparison: ModelComparison | None
@@ -91,6 +93,7 @@ def diagnose_field(
     fitters: Sequence[tuple[str, Fitter]] = DEFAULT_FITTERS,
     dynamic: ModelFit | None = None,
     cole: ColeTrend | None = None,
+    outliers: tuple[Outlier, ...] | None = None,
 ) -> Diagnosis:
     """Fit every available model to one field, compare them and raise the flags.
 
@@ -104,6 +107,9 @@ def diagnose_field(
         single-tank fit when omitted.
     cole : ColeTrend, optional
         The Cole-plot trend from the aquifer analysis.
+    outliers : tuple of Outlier, optional
+        Surveys the estimate's own outlier rule set aside (they are then no longer among
+        the included points); when omitted, outliers are found from the robust trend.
     """
     th = inputs.flag_thresholds
     fits: list[ModelFit] = []
@@ -134,15 +140,19 @@ def diagnose_field(
     )
     if dynamic is None:
         dynamic = next((f for f in fits if f.name == "single_tank"), None)
-    evidence = _evidence(inputs, prepared, comparison, wells, dynamic, cole)
-    return Diagnosis(tuple(fits), tuple(skipped), comparison, wells, evidence, raise_flags(evidence, th))
+    evidence = _evidence(inputs, prepared, comparison, wells, dynamic, cole, outliers)
+    return Diagnosis(
+        gp, pz, tuple(fits), tuple(skipped), comparison, wells, evidence, raise_flags(evidence, th)
+    )
 
 
-def _evidence(inputs, prepared, comparison, wells, dynamic, cole) -> Evidence:
+def _evidence(inputs, prepared, comparison, wells, dynamic, cole, given_outliers) -> Evidence:
     th = inputs.flag_thresholds
     pts = [p for p in prepared.points if p.included]
     odd = {f.well for f in wells if f.disagrees}
     outliers, noise, keep = _outliers(inputs, pts, odd, th.outlier_sigma)
+    if given_outliers is not None:
+        outliers = tuple(given_outliers)
     gp = np.array([p.gp_bscf for p in pts])
     pz = np.array([p.pz_psia for p in pts])
     w = np.array([p.weight for p in pts])

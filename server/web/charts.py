@@ -240,3 +240,116 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
             }
         )
     return traces
+
+
+# --- diagnosis charts (model fits, Cole plot) -------------------------------------------
+
+MODEL_COLOURS = {
+    "single_tank": LINE_COLOUR,
+    "tank_ce": "#7a4f9a",
+    "two_tank": "#c2571a",
+    "multi_tank": "#c2571a",
+}
+AQUIFER_COLOUR = "#2f8f9d"
+OBSERVED_COLOUR = "#5b6770"
+
+
+def _layout(x_title: str, y_title: str) -> dict:
+    return {
+        "xaxis": _axis(x_title),
+        "yaxis": _axis(y_title),
+        "legend": {"orientation": "h", "y": -0.2},
+        "margin": {"l": 60, "r": 20, "t": 20, "b": 60},
+        "hovermode": "closest",
+        "paper_bgcolor": "#ffffff",
+        "plot_bgcolor": "#fbfcfd",
+    }
+
+
+def model_fits_figure(diagnosis: dict) -> dict:
+    """Observed p/z of the surveys every model was fitted to, and each model's fitted p/z,
+    against cumulative gas (one line per model, in the comparison's rank order)."""
+    gp = diagnosis.get("gp_bscf") or []
+    pz = diagnosis.get("pz_psia") or []
+    order = sorted(range(len(gp)), key=lambda i: gp[i])
+    traces = [
+        {
+            "type": "scatter",
+            "mode": "markers",
+            "name": "surveys used by every model",
+            "x": [gp[i] for i in order],
+            "y": [pz[i] for i in order],
+            "marker": {"color": OBSERVED_COLOUR, "symbol": "circle-open", "size": 8},
+            "hovertemplate": "%{x:.2f} Bscf, p/z %{y:.0f} psia<extra>survey</extra>",
+        }
+    ]
+    fits = {m["name"]: m for m in diagnosis.get("models") or []}
+    ranked = [r["name"] for r in ((diagnosis.get("comparison") or {}).get("rows") or [])]
+    dashes = ("solid", "dash", "dot", "dashdot", "longdash")
+    for k, name in enumerate(ranked + [n for n in fits if n not in ranked]):
+        m = fits.get(name)
+        if m is None or len(m.get("fitted_pz_psia") or []) != len(gp):
+            continue
+        colour = MODEL_COLOURS.get(name, AQUIFER_COLOUR if name.startswith("aquifer_") else LINE_COLOUR)
+        giip = m.get("giip_bscf")
+        traces.append(
+            {
+                "type": "scatter",
+                "mode": "lines",
+                "name": m["title"] + (f", GIIP {giip:,.1f} Bscf" if giip is not None else ""),
+                "x": [gp[i] for i in order],
+                "y": [m["fitted_pz_psia"][i] for i in order],
+                "line": {"color": colour, "width": 2, "dash": dashes[k % len(dashes)]},
+                "hovertemplate": "%{x:.2f} Bscf, %{y:.0f} psia<extra>" + name + "</extra>",
+            }
+        )
+    return {"data": traces, "layout": _layout("Cumulative gas produced, Gp (Bscf)", "p/z (psia)")}
+
+
+def cole_figure(plots: list[dict]) -> dict:
+    """Cole plot: F/Eg (and the modified F/(Eg + Efw) when given) against Gp, the points
+    used for the trend, and the fitted trend line with its direction and significance."""
+    traces = []
+    for plot in plots:
+        modified = bool(plot.get("modified"))
+        label = "F/(Eg+Efw)" if modified else "F/Eg"
+        colour = "#7a4f9a" if modified else AQUIFER_COLOUR
+        gp = plot.get("gp_bscf") or []
+        ratio = plot.get("ratio_bscf") or []
+        used = plot.get("used") or [True] * len(gp)
+        keep = [i for i in range(len(gp)) if ratio[i] is not None]
+        for flag, name, symbol in (
+            (True, label, "circle"),
+            (False, f"{label}, not used for the trend", "x-open"),
+        ):
+            idx = [i for i in keep if bool(used[i]) is flag]
+            if idx:
+                traces.append(
+                    {
+                        "type": "scatter",
+                        "mode": "markers",
+                        "name": name,
+                        "x": [gp[i] for i in idx],
+                        "y": [ratio[i] for i in idx],
+                        "marker": {"color": colour, "symbol": symbol, "size": 8},
+                        "hovertemplate": "%{x:.2f} Bscf, %{y:.1f} Bscf<extra>" + label + "</extra>",
+                    }
+                )
+        trend = plot.get("trend") or {}
+        xs = [gp[i] for i in keep if used[i]]
+        if xs and trend.get("slope") is not None and trend.get("intercept_bscf") is not None:
+            x0, x1 = min(xs), max(xs)
+            p = trend.get("p_value")
+            traces.append(
+                {
+                    "type": "scatter",
+                    "mode": "lines",
+                    "name": f"{label} trend: {trend.get('direction', '')}"
+                    + (f" (p = {p:.2g})" if p is not None else ""),
+                    "x": [x0, x1],
+                    "y": [trend["intercept_bscf"] + trend["slope"] * x for x in (x0, x1)],
+                    "line": {"color": colour, "width": 2, "dash": "dash"},
+                    "hoverinfo": "skip",
+                }
+            )
+    return {"data": traces, "layout": _layout("Cumulative gas produced, Gp (Bscf)", "F/Eg (Bscf)")}
