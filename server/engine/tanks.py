@@ -11,10 +11,10 @@ and the flow between connected tanks is written in the pressure-squared form
     q_jk = Gamma'_jk (p_j^2 - p_k^2)            [scf/d], Gamma' in scf/d/psi^2
 
 (Payne 1996, SPE-36702-PA; Hagoort & Hoogstra 1997 — both from memory; domain reference
-§4.2). Gamma' = Gamma/(mu z)avg absorbs the gas viscosity and z at an average pressure, the
-acceptable low-pressure approximation of the pseudo-pressure form (domain reference §4.2).
-Because Gamma' is fitted, the form only matters through how mu z changes over the
-history; the check value 27 test fits this form to data made with the pseudo-pressure form.
+§4.2), or in the pseudo-pressure form q_jk = Gamma_jk (m(p_j) - m(p_k)) with
+m(p) = 2 int p/(mu z) dp, the default of the fit. Gamma' = Gamma/(mu z)avg is the
+low-pressure approximation; since mu z falls by about 40 % between 5000 and 2000 psia the
+pseudo-pressure form is the one that reproduces check value 27.
 
 The network is a star: tank 0 holds the producing wells and every other tank connects
 to it only (a hidden neighbour across a leaky fault, or labelled compartments). Each

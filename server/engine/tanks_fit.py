@@ -22,7 +22,7 @@ from .errors import InsufficientDataError
 from .inputs import FieldInputs
 from .modelfit import ModelFit
 from .prepare import PreparedData
-from .pvt import z_factor
+from .pvt import gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 from .pz import fit_pz_line
 from .tanks import PotentialTable, potential_table, simulate_star_tanks
 
@@ -121,8 +121,19 @@ def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, 
             alpha[i] = (t_obs[i] - knots[n - 1]) / (knots[n] - knots[n - 1])
     alpha = np.clip(alpha, 0.0, 1.0)
 
+    # The fluid z was computed for (well stream when corrected); the lab table, if any, is
+    # not used here: it would change the flow term only, by the table's small deviation.
+    fluid = prepared.fluid or inputs.fluid
+    t_degF = inputs.reservoir_temperature_degF
+
     def z_of_p(p):
-        return z_factor(p, inputs.reservoir_temperature_degF, inputs.fluid, inputs.choices.z_method)
+        return z_factor(p, t_degF, fluid, inputs.choices.z_method)
+
+    if potential == "pseudo_pressure" and viscosity_cp_of_p is None:
+
+        def viscosity_cp_of_p(p):
+            rho = gas_density_lb_per_ft3(p, t_degF, z_of_p(p), fluid.gas_gravity)
+            return gas_viscosity_lee_gonzalez_eakin(t_degF, fluid.gas_gravity, rho)
 
     pot = potential_table(
         z_of_p,
@@ -162,7 +173,7 @@ def fit_two_tank(
     inputs: FieldInputs,
     prepared: PreparedData,
     *,
-    potential: str = "pressure_squared",
+    potential: str = "pseudo_pressure",
     viscosity_cp_of_p=None,
     max_steps: int = 50,
 ) -> ModelFit:
@@ -175,7 +186,8 @@ def fit_two_tank(
         Flow-potential form of the connection (see :func:`.tanks.potential_table`).
     viscosity_cp_of_p : callable, optional
         Gas viscosity [cP] against pressure [psia] at reservoir temperature, for the
-        pseudo-pressure form.
+        pseudo-pressure form; Lee, Gonzalez & Eakin (1966) for the prepared fluid when
+        omitted.
     max_steps : int
         Production periods are merged into steps of about a quarter, and into at most
         this many steps (cumulative withdrawals are exact at every step end). Quarterly
@@ -276,6 +288,10 @@ def _model_fit(res, prob, layout, prepared, inputs, resid) -> ModelFit:
     t = stats.t.ppf(0.5 + 0.5 * inputs.choices.confidence_level, dof)
     low = max(total - t * se_total, prepared.cumulative_gas_bscf) if math.isfinite(se_total) else None
     high = total + t * se_total if identifiable and math.isfinite(se_total) else None
+    reported = total
+    if not se_total <= MAX_RELATIVE_SE * total:  # also catches an infinite error
+        reported = low = high = None
+        notes.append("the connected GIIP is not determined by the data (no neighbour is seen)")
     pzi = theta[0]
     for j in range(1, n_tanks):
         tau = g[0] * g[j] / (g[0] + g[j]) * 1e9 / (gam[j - 1] * pzi * prob.potential(pzi)[1])
@@ -296,7 +312,7 @@ def _model_fit(res, prob, layout, prepared, inputs, resid) -> ModelFit:
         rss_psia2=rss,
         residual_pz_psia=prob.y - fitted,
         fitted_pz_psia=fitted,
-        giip_bscf=total,
+        giip_bscf=reported,
         giip_low_bscf=None if low is None else float(low),
         giip_high_bscf=None if high is None else float(high),
         params={nm: float(v) for nm, v in zip(names, values, strict=True)},

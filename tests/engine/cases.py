@@ -10,8 +10,7 @@ import numpy as np
 from scipy.interpolate import CubicSpline
 
 from server.engine.inputs import FieldInputs
-from server.engine.pvt import GasFluid, z_factor
-from server.engine.units import GAS_CONSTANT_PSIA_FT3_PER_LBMOL_DEGR
+from server.engine.pvt import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 
 GAS_065 = GasFluid(0.65)
 MONTH_DAYS = 30.4375
@@ -58,18 +57,10 @@ CV27_PZ1_PSIA = np.array(
 
 
 def lge_viscosity_cp(p_psia, t_degF, fluid: GasFluid):
-    """Lee, Gonzalez & Eakin (1966) gas viscosity, transcribed from domain reference §1.7.
-
-    A test oracle for the pseudo-pressure potential (checked against check value 13 in
-    test_tanks.py) until the PVT module provides the correlation.
-    """
-    t_degR = t_degF + 459.67
-    m = 28.9647 * fluid.gas_gravity
-    p = np.asarray(p_psia, float)
-    rho_g_cc = p * m / (z_factor(p, t_degF, fluid) * GAS_CONSTANT_PSIA_FT3_PER_LBMOL_DEGR * t_degR) / 62.428
-    k = (9.4 + 0.02 * m) * t_degR**1.5 / (209 + 19 * m + t_degR)
-    x = 3.5 + 986 / t_degR + 0.01 * m
-    return 1e-4 * k * np.exp(x * rho_g_cc ** (2.4 - 0.2 * x))
+    """Lee, Gonzalez & Eakin (1966) viscosity at pressure, from the PVT module [cP]."""
+    z = z_factor(p_psia, t_degF, fluid)
+    rho = gas_density_lb_per_ft3(p_psia, t_degF, z, fluid.gas_gravity)
+    return gas_viscosity_lee_gonzalez_eakin(t_degF, fluid.gas_gravity, rho)
 
 
 def pressure_for_pz(pz_psia, t_degF, fluid: GasFluid):
@@ -172,10 +163,11 @@ def demo_field_inputs(name: str) -> FieldInputs:
     comp = {w.name: w.compartment for w in spec.wells}
     months = sorted({m for _, m, *_ in hist["production"]})
     index = {m: k for k, m in enumerate(months)}
-    gas, water = np.zeros(len(months)), np.zeros(len(months))
+    gas, cond, water = np.zeros(len(months)), np.zeros(len(months)), np.zeros(len(months))
     by_comp: dict[str, np.ndarray] = {}
-    for well, m, g, _, wat in hist["production"]:
+    for well, m, g, c, wat in hist["production"]:
         gas[index[m]] += round(g, 1)
+        cond[index[m]] += round(c, 1)
         water[index[m]] += round(wat, 1)
         if comp[well] is not None:
             by_comp.setdefault(comp[well], np.zeros(len(months)))[index[m]] += round(g, 1)
@@ -193,6 +185,7 @@ def demo_field_inputs(name: str) -> FieldInputs:
         survey_included=np.ones(len(surveys), bool),
         production_end_t_days=np.array([days_from_date(month_end_exclusive(m)) for m in months]),
         production_gas_mscf=gas,
+        production_condensate_stb=cond,
         production_water_stb=water,
         survey_well=tuple(s[0] for s in surveys),
         survey_compartment=tuple(comp[s[0]] for s in surveys),

@@ -18,7 +18,7 @@ from server.engine.diagnosis import single_tank_fit
 from server.engine.modelfit import ModelFit
 from server.engine.prepare import prepare
 from server.engine.tanks_fit import fit_two_tank
-from tests.engine.cases import GAS_065, cv27_quarterly, lge_viscosity_cp
+from tests.engine.cases import cv27_quarterly
 
 
 def _fit(name, rss, n=33, k=2, giip=100.0, residuals=None):
@@ -120,12 +120,7 @@ def test_check_value_27_two_tanks_preferred_by_aic_bic_and_f():
     inputs = cv27_quarterly(noise_psia=15.0)
     prepared = prepare(inputs)
     single = single_tank_fit(prepared)
-    two = fit_two_tank(
-        inputs,
-        prepared,
-        potential="pseudo_pressure",
-        viscosity_cp_of_p=lambda p: lge_viscosity_cp(p, 200.0, GAS_065),
-    )
+    two = fit_two_tank(inputs, prepared)  # pseudo-pressure with LGE viscosity, as in §7.5
     _, gp, _, _ = prepared.arrays()
     cmp = compare_models([single, two], gp)
     assert cmp.preferred == "two_tank" and cmp.comparable == ("two_tank",)

@@ -6,8 +6,9 @@ within the interval the noise allows."""
 import numpy as np
 import pytest
 
-from server.engine.diagnosis import diagnose_field
+from server.engine.diagnosis import DEFAULT_FITTERS, diagnose_field
 from server.engine.prepare import prepare
+from server.engine.tanks_fit import fit_two_tank
 from server.engine.volumetrics import volumetric_range
 from server.synthetic.tank import FetkovichAquifer, PotAquifer, SecondTank, TankSpec
 from tests.engine.cases import GAS_065, cv27_quarterly, synthetic_field
@@ -20,8 +21,17 @@ THREE_WELLS = [
 ]
 
 
-def _diagnose(inputs):
-    d = diagnose_field(inputs, prepare(inputs))
+# server/synthetic/tank.py connects its tanks in the pressure-squared form; the fits use the
+# same form here so that the interval test measures noise, not model-form error (the
+# default pseudo-pressure form is checked against its own reference, check value 27).
+P2_FITTERS = (
+    DEFAULT_FITTERS[0],
+    ("two_tank", lambda inputs, prepared: fit_two_tank(inputs, prepared, potential="pressure_squared")),
+)
+
+
+def _diagnose(inputs, fitters=P2_FITTERS):
+    d = diagnose_field(inputs, prepare(inputs), fitters=fitters)
     return d, {f.code for f in d.flags}
 
 
@@ -56,6 +66,9 @@ def test_hidden_neighbour_across_a_leaky_fault():
     two = d.comparison.row("two_tank")
     _within_interval(two, 100.0)
     assert d.comparison.row("single_tank").giip_bscf < 95.0  # the straight line under-reads (§4.3)
+    # with the default (pseudo-pressure) connection the model choice and flag do not change
+    d, flags = _diagnose(inputs, DEFAULT_FITTERS)
+    assert flags == {"compartment_signature"} and d.comparison.preferred == "two_tank"
 
 
 def test_late_well_in_a_labelled_compartment_reads_near_initial():
@@ -139,7 +152,7 @@ def test_check_value_27_case_prefers_two_tanks_and_flags_compartments():
     # Check value 27 (§7.5, sigma = 15 psia, 33 quarterly surveys): two tanks preferred
     # by AICc, the single tank has little support, and the compartment flag is raised.
     inputs = cv27_quarterly(noise_psia=15.0)
-    d, flags = _diagnose(inputs)
+    d, flags = _diagnose(inputs, DEFAULT_FITTERS)
     assert d.comparison.preferred == "two_tank"
     assert d.comparison.row("single_tank").support == "little support"
     assert flags == {"compartment_signature"}
