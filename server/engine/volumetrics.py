@@ -246,3 +246,18 @@ def split_lognormal_mean(low: float, best: float, high: float) -> float:
     return best * (
         math.exp(s_lo**2 / 2) * stats.norm.cdf(-s_lo) + math.exp(s_hi**2 / 2) * stats.norm.cdf(s_hi)
     )
+
+
+def volumetric_inputs_from_cases(cases: dict, rank_correlations=()) -> VolumetricInputs:
+    """Triangular ranges from low/best/high of each input, as uploaded
+    (``rock_volume_acre_ft_low``, ``..._best``, ``..._high``, and so on for every name in
+    VARIABLES); the best case is the mode. Raises InputRangeError naming what is missing."""
+    missing = [
+        f"{v}_{c}" for v in VARIABLES for c in ("low", "best", "high") if cases.get(f"{v}_{c}") is None
+    ]
+    if missing:
+        raise InputRangeError("Monte Carlo inputs are incomplete: missing " + ", ".join(missing))
+    dists = {v: Triangular(*(float(cases[f"{v}_{c}"]) for c in ("low", "best", "high"))) for v in VARIABLES}
+    for name, d in dists.items():
+        d.check(name)
+    return VolumetricInputs(**dists, rank_correlations=tuple(rank_correlations))

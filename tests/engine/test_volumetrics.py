@@ -22,6 +22,7 @@ from server.engine.volumetrics import (
     normal_correlation_from_rank,
     split_lognormal_mean,
     split_lognormal_quantile,
+    volumetric_inputs_from_cases,
     volumetric_range,
 )
 
@@ -189,3 +190,26 @@ def test_fields_known_only_by_low_best_high_aggregate():
     )
     with pytest.raises(InputRangeError, match="B: needs trials"):
         aggregate_portfolio([FieldVolume("B", low_bscf=60, best_bscf=50, high_bscf=75)])
+
+
+def test_inputs_from_uploaded_cases():
+    cases = {
+        f"{v}_{c}": x
+        for v, xs in {
+            "rock_volume_acre_ft": (40000, 60000, 90000),
+            "net_to_gross_frac": (0.6, 0.7, 0.8),
+            "porosity_frac": (0.15, 0.2, 0.24),
+            "gas_saturation_frac": (0.6, 0.7, 0.8),
+            "bgi_rcf_per_scf": (0.0045, 0.0045, 0.0045),
+        }.items()
+        for c, x in zip(("low", "best", "high"), xs, strict=True)
+    }
+    inp = volumetric_inputs_from_cases(cases)
+    assert inp.porosity_frac == Triangular(0.15, 0.2, 0.24)
+    assert giip_monte_carlo(inp, trials=2000).p50_bscf > 0
+    del cases["porosity_frac_high"]
+    with pytest.raises(InputRangeError, match="missing porosity_frac_high"):
+        volumetric_inputs_from_cases(cases)
+    cases["porosity_frac_high"] = 0.1
+    with pytest.raises(InputRangeError, match="porosity_frac: triangular needs low <= mode <= high"):
+        volumetric_inputs_from_cases(cases)
