@@ -59,6 +59,16 @@ class PortfolioRow:
             return None
         return self.estimate.giip_best_bscf / self.volumetric.best_bscf
 
+    @property
+    def volumetric_position(self) -> str | None:
+        """Where the dynamic best estimate lies against the volumetric low-high range."""
+        if self.estimate is None or self.estimate.giip_best_bscf is None or self.volumetric is None:
+            return None
+        g = self.estimate.giip_best_bscf
+        if g < self.volumetric.low_bscf:
+            return "below"
+        return "above" if g > self.volumetric.high_bscf else "within"
+
 
 @dataclass(frozen=True)
 class FieldDetail:
