@@ -15,7 +15,9 @@ import math
 from dataclasses import dataclass, field
 
 from . import ENGINE_VERSION
+from .diagnosis import DEFAULT_FITTERS, Diagnosis, Headline, diagnose_field
 from .errors import EngineError, InputRangeError, InsufficientDataError
+from .flags import Outlier
 from .inputs import OVERPRESSURE_MODES, WEIGHTINGS, AnalysisChoices, FieldInputs
 from .modelfit import ModelFit
 from .overpressure import single_tank_modelfit, tank_ce_modelfit
@@ -59,7 +61,8 @@ class FieldAnalysis:
     eur_bscf: float | None = None
     recovery_factor_frac: float | None = None
     remaining_bscf: float | None = None
-    flags: tuple = ()
+    flags: tuple = ()  # the diagnosis' flags (engine/flags.py), most severe first
+    diagnosis: Diagnosis | None = None  # every model compared, wells, evidence (see with_diagnosis)
     engine_version: str = ENGINE_VERSION
     notes: tuple[str, ...] = field(default_factory=tuple)
 
@@ -86,9 +89,10 @@ def check_choices(choices: AnalysisChoices) -> None:
 
 
 def analyse_field(inputs: FieldInputs) -> FieldAnalysis:
-    """Prepare a field's data and analyse it; refuses with a reason when data are too thin."""
+    """Prepare a field's data, analyse it and diagnose it; the p/z estimate refuses with a
+    reason when data are too thin (the diagnosis still runs and says why)."""
     check_choices(inputs.choices)
-    return analyse_prepared(prepare(inputs), inputs.choices)
+    return with_diagnosis(inputs, analyse_prepared(prepare(inputs), inputs.choices))
 
 
 def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldAnalysis:
@@ -218,3 +222,45 @@ def _attempted_method(prepared: PreparedData, choices: AnalysisChoices) -> str:
     weights = {p.weight for p in prepared.points if p.included}
     weighted = choices.weighting == "quality" and len(weights) > 1
     return method_key(weighted, choices.anchor_initial, choices.overpressure_mode)
+
+
+# ── Diagnosis: every model on the same screened points, the comparison and the flags ──
+# (engine/diagnosis.py; kept apart from the p/z estimate above, which it only reads)
+
+
+def with_diagnosis(inputs: FieldInputs, result: FieldAnalysis) -> FieldAnalysis:
+    """The analysis with the remaining models fitted (two tanks, aquifers), all models
+    compared and the flags raised; the p/z estimate's outliers and interval are used."""
+    screened = screened_data(result.prepared, result.pz) if result.pz is not None else result.prepared
+    have = {m.name for m in result.models}
+    fitters = [("estimate models", lambda _i, _p: result.models)] + [
+        (name, fit) for name, fit in DEFAULT_FITTERS if name not in have
+    ]
+    headline = None
+    if result.status == "ok" and result.giip_best_bscf is not None:
+        headline = Headline(
+            result.method,
+            result.giip_best_bscf,
+            result.giip_ci_low_bscf,
+            result.giip_ci_high_bscf,
+            result.giip_ci_kind,
+        )
+    diag = diagnose_field(
+        inputs, screened, fitters=fitters, headline=headline, outliers=_estimate_outliers(inputs, result)
+    )
+    return dataclasses.replace(result, diagnosis=diag, flags=diag.flags)
+
+
+def _estimate_outliers(inputs: FieldInputs, result: FieldAnalysis) -> tuple[Outlier, ...] | None:
+    """The surveys the p/z estimate's outlier rule set aside, as flag evidence."""
+    if result.pz is None:
+        return None
+    by_index = {p.index: p for p in result.prepared.points}
+    out = []
+    for s in result.pz.points:
+        if s.status == "outlier":
+            p = by_index[s.index]
+            kind = inputs.survey_text("survey_kind", p.index, "survey")
+            off = s.residual_pz_psia if s.residual_pz_psia is not None else math.nan
+            out.append(Outlier(p.well, p.t_days, off, abs(s.studentized or 0.0), kind, p.quality))
+    return tuple(out)

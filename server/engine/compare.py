@@ -23,8 +23,8 @@ the simpler model sits on the boundary of the larger one's parameter space (Γ -
 influx -> 0) the F reference distribution is only approximate.
 
 Residual structure: the Wald-Wolfowitz runs test on the signs of the residuals ordered by
-cumulative production (too few runs = systematic curvature, a missing mechanism), with
-the exact distribution of the number of runs, and the lag-1 autocorrelation.
+cumulative production (:func:`.stats.runs_test`; too few runs = systematic curvature, a
+missing mechanism), and the lag-1 autocorrelation.
 """
 
 from __future__ import annotations
@@ -36,6 +36,7 @@ import numpy as np
 from scipy import stats
 
 from .modelfit import ModelFit
+from .stats import RunsTest, runs_test
 
 COMPARABLE_DELTA = 2.0
 LITTLE_SUPPORT_DELTA = 10.0
@@ -47,17 +48,6 @@ NESTED = (
     ("single_tank", "aquifer_*"),
     ("tank_ce", "tank_ce_aquifer_*"),
 )
-
-
-@dataclass(frozen=True)
-class RunsTest:
-    """Wald-Wolfowitz runs test of residual signs (zeros dropped)."""
-
-    n_positive: int
-    n_negative: int
-    runs: int
-    expected_runs: float
-    p_too_few: float  # P(R <= runs) under randomness: small = structured residuals
 
 
 @dataclass(frozen=True)
@@ -117,33 +107,6 @@ def information_criteria(rss: float, n: int, k: int) -> tuple[float, float, floa
     aic = base + 2 * k
     aicc = aic + 2 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf
     return aic, aicc, base + k * math.log(n)
-
-
-def runs_test(residuals) -> RunsTest | None:
-    """Wald-Wolfowitz runs test with the exact null distribution of the number of runs.
-
-    P(R = 2m) = 2 C(a-1, m-1) C(b-1, m-1) / C(a+b, a) and
-    P(R = 2m+1) = [C(a-1, m-1) C(b-1, m) + C(a-1, m) C(b-1, m-1)] / C(a+b, a)
-    for a positive and b negative signs (Wald & Wolfowitz 1940 — from memory).
-    Returns None when either sign is missing.
-    """
-    s = np.sign(np.asarray(residuals, float))
-    s = s[s != 0]
-    a, b = int(np.sum(s > 0)), int(np.sum(s < 0))
-    if a == 0 or b == 0:
-        return None
-    runs = 1 + int(np.sum(s[1:] != s[:-1]))
-    total = math.comb(a + b, a)
-    cum = 0
-    for r in range(2, runs + 1):
-        m, odd = divmod(r, 2)
-        if odd:
-            cum += math.comb(a - 1, m - 1) * math.comb(b - 1, m) + math.comb(a - 1, m) * math.comb(
-                b - 1, m - 1
-            )
-        else:
-            cum += 2 * math.comb(a - 1, m - 1) * math.comb(b - 1, m - 1)
-    return RunsTest(a, b, runs, 1.0 + 2.0 * a * b / (a + b), cum / total)
 
 
 def lag1_autocorrelation(residuals) -> float | None:

@@ -14,16 +14,15 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
 
 from .compare import ModelComparison, compare_models, curvature_test
-from .errors import EngineError, InsufficientDataError
+from .errors import EngineError
 from .flag_rules import raise_flags
 from .flags import ColeTrend, Evidence, Flag, Outlier, WaterTrend
 from .inputs import FieldInputs
 from .modelfit import ModelFit
+from .overpressure import single_tank_modelfit, tank_ce_modelfit
 from .prepare import PreparedData
-from .pz import fit_pz_line
 from .tanks_fit import fit_two_tank
 from .wells import WellFinding, robust_trend, well_disagreements
 
@@ -31,9 +30,21 @@ Fitter = Callable[[FieldInputs, PreparedData], "ModelFit | Sequence[ModelFit]"]
 
 
 @dataclass(frozen=True)
+class Headline:
+    """The dynamic estimate the field reports, held against the volumetric range."""
+
+    method: str
+    giip_bscf: float
+    low_bscf: float | None
+    high_bscf: float | None
+    interval_kind: str | None  # e.g. "Fieller 95 % confidence interval"
+
+
+@dataclass(frozen=True)
 class Diagnosis:
     gp_bscf: np.ndarray  # the included surveys every model is fitted to, in their order
     pz_psia: np.ndarray
+    compartment: tuple[str | None, ...]  # each survey's well compartment label
     models: tuple[ModelFit, ...]
     skipped: tuple[tuple[str, str], ...]  # (model, why it was not fitted)
     comparison: ModelComparison | None
@@ -42,46 +53,9 @@ class Diagnosis:
     flags: tuple[Flag, ...]
 
 
-def single_tank_fit(prepared: PreparedData, confidence_level: float = 0.95) -> ModelFit:
-    """The volumetric p/z line as a ModelFit (weighted least squares, delta-method interval).
-
-    Stands in until :mod:`.pz` provides its own ``single_tank`` ModelFit.
-    """
-    _, gp, pz, w = prepared.arrays()
-    if gp.size < 3:
-        raise InsufficientDataError("a single-tank fit with an interval needs at least 3 surveys")
-    line = fit_pz_line(gp, pz, w)
-    a, b = line.intercept_psia, line.slope_psia_per_bscf
-    fitted = a + b * gp
-    r = pz - fitted
-    n = gp.size
-    rss = float(np.sum(w * r**2))
-    x = np.column_stack([np.ones(n), gp]) * np.sqrt(w)[:, None]
-    cov = rss / (n - 2) * np.linalg.inv(x.T @ x)
-    g = -a / b
-    grad = np.array([-1.0 / b, a / b**2])
-    se_g = math.sqrt(max(grad @ cov @ grad, 0.0))
-    t = stats.t.ppf(0.5 + 0.5 * confidence_level, n - 2)
-    se = np.sqrt(np.diag(cov))
-    return ModelFit(
-        name="single_tank",
-        title="Single volumetric tank (p/z line)",
-        n_params=2,
-        n_obs=n,
-        rss_psia2=rss,
-        residual_pz_psia=r,
-        fitted_pz_psia=fitted,
-        giip_bscf=g,
-        giip_low_bscf=g - t * se_g,
-        giip_high_bscf=g + t * se_g,
-        params={"initial_pz_psia": a, "slope_psia_per_bscf": b},
-        param_se={"initial_pz_psia": float(se[0]), "slope_psia_per_bscf": float(se[1])},
-        correlation=cov / np.outer(se, se),
-    )
-
-
 DEFAULT_FITTERS: tuple[tuple[str, Fitter], ...] = (
-    ("single_tank", lambda i, p: single_tank_fit(p, i.choices.confidence_level)),
+    ("single_tank", lambda i, p: single_tank_modelfit(p, i.choices)),
+    ("tank_ce", lambda i, p: tank_ce_modelfit(p, i.choices)),
     ("two_tank", lambda i, p: fit_two_tank(i, p)),
 )
 
@@ -91,7 +65,7 @@ def diagnose_field(
     prepared: PreparedData,
     *,
     fitters: Sequence[tuple[str, Fitter]] = DEFAULT_FITTERS,
-    dynamic: ModelFit | None = None,
+    headline: Headline | None = None,
     cole: ColeTrend | None = None,
     outliers: tuple[Outlier, ...] | None = None,
 ) -> Diagnosis:
@@ -102,9 +76,9 @@ def diagnose_field(
     inputs, prepared : the field's inputs and prepared p/z points.
     fitters : sequence of (name, callable)
         Each callable takes (inputs, prepared) and returns one ModelFit or several.
-    dynamic : ModelFit, optional
-        The headline dynamic estimate held against the volumetric range; the
-        single-tank fit when omitted.
+    headline : Headline, optional
+        The dynamic estimate held against the volumetric range; the single-tank fit's
+        GIIP and interval when omitted.
     cole : ColeTrend, optional
         The Cole-plot trend from the aquifer analysis.
     outliers : tuple of Outlier, optional
@@ -138,15 +112,19 @@ def diagnose_field(
         min_points=th.well_min_points,
         near_initial_ratio=th.near_initial_ratio,
     )
-    if dynamic is None:
-        dynamic = next((f for f in fits if f.name == "single_tank"), None)
-    evidence = _evidence(inputs, prepared, comparison, wells, dynamic, cole, outliers)
-    return Diagnosis(
-        gp, pz, tuple(fits), tuple(skipped), comparison, wells, evidence, raise_flags(evidence, th)
-    )
+    if headline is None:
+        single = next((f for f in fits if f.name == "single_tank" and f.giip_bscf is not None), None)
+        if single is not None:
+            headline = Headline(
+                single.name, single.giip_bscf, single.giip_low_bscf, single.giip_high_bscf, None
+            )
+    evidence = _evidence(inputs, prepared, comparison, wells, headline, cole, outliers)
+    labels = tuple(p.compartment for p in prepared.points if p.included)
+    flags = raise_flags(evidence, th)
+    return Diagnosis(gp, pz, labels, tuple(fits), tuple(skipped), comparison, wells, evidence, flags)
 
 
-def _evidence(inputs, prepared, comparison, wells, dynamic, cole, given_outliers) -> Evidence:
+def _evidence(inputs, prepared, comparison, wells, headline, cole, given_outliers) -> Evidence:
     th = inputs.flag_thresholds
     pts = [p for p in prepared.points if p.included]
     odd = {f.well for f in wells if f.disagrees}
@@ -173,10 +151,11 @@ def _evidence(inputs, prepared, comparison, wells, dynamic, cole, given_outliers
         datum_depth_ft=inputs.datum_depth_ft,
         overpressure_mode=inputs.choices.overpressure_mode,
         depletion_frac=depletion,
-        dynamic_method=None if dynamic is None else dynamic.name,
-        dynamic_giip_bscf=None if dynamic is None else dynamic.giip_bscf,
-        dynamic_low_bscf=None if dynamic is None else dynamic.giip_low_bscf,
-        dynamic_high_bscf=None if dynamic is None else dynamic.giip_high_bscf,
+        dynamic_method=None if headline is None else headline.method,
+        dynamic_giip_bscf=None if headline is None else headline.giip_bscf,
+        dynamic_low_bscf=None if headline is None else headline.low_bscf,
+        dynamic_high_bscf=None if headline is None else headline.high_bscf,
+        dynamic_interval_kind=None if headline is None else headline.interval_kind,
         volumetric=inputs.volumetric,
         comparison=comparison,
         curvature=curvature_test(gp[keep], pz[keep], w[keep]) if keep.any() else None,

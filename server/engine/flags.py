@@ -18,6 +18,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
+from .pz import MIN_DEPLETION_FRAC  # the p/z estimate refuses below the same fall
+
 if TYPE_CHECKING:  # annotations only: inputs.py imports this module
     from .compare import CurvatureTest, ModelComparison
     from .volumetrics import VolumetricResult
@@ -30,7 +32,7 @@ SEVERITIES = ("info", "warning", "alert")
 class FlagThresholds:
     """Every threshold the flags use, with its default (see docs/flags.md)."""
 
-    min_depletion_frac: float = 0.10  # p/z fall below this: too little depletion to judge
+    min_depletion_frac: float = MIN_DEPLETION_FRAC  # p/z fall below this: too little depletion
     min_surveys: int = 3  # included surveys needed to judge anything
     model_preference_delta_aicc: float = 10.0  # a mechanism model must beat the single tank by this
     comparable_delta_aicc: float = 2.0  # models closer than this to the best fit comparably
@@ -110,6 +112,7 @@ class Evidence:
     above_initial: tuple[tuple[str, float, float], ...] = ()  # (well, t_days, p_datum_psia)
     longest_survey_gap_days: float | None = None
     longest_production_period_days: float | None = None
+    dynamic_interval_kind: str | None = None  # what the dynamic low/high are
 
     @property
     def gradient_psi_per_ft(self) -> float | None:

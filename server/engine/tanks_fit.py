@@ -15,7 +15,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
 from scipy.optimize import least_squares
 
 from .errors import InsufficientDataError
@@ -24,6 +23,7 @@ from .modelfit import ModelFit
 from .prepare import PreparedData
 from .pvt import gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 from .pz import fit_pz_line
+from .stats import t_multiplier
 from .tanks import PotentialTable, potential_table, simulate_star_tanks
 
 MAX_TANKS = 4
@@ -153,10 +153,17 @@ def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, 
     )
 
 
+#: Search box of the log parameters (GIIP in Bscf, connection in its unit): far wider than
+#: any field, it only keeps a wandering fit from overflowing; a fit at the edge is flat
+#: there and reported as not identifiable.
+LOG_GIIP_BOUNDS = (math.log(1e-4), math.log(1e7))
+LOG_GAMMA_BOUNDS = (math.log(1e-14), math.log(1e6))
+
+
 def _predict(theta, prob: _Problem, n_tanks: int) -> np.ndarray:
     pzi = theta[0]
-    g = np.exp(theta[1 : 1 + n_tanks]) * 1e9
-    gam = np.exp(theta[1 + n_tanks :])
+    g = np.exp(np.clip(theta[1 : 1 + n_tanks], *LOG_GIIP_BOUNDS)) * 1e9
+    gam = np.exp(np.clip(theta[1 + n_tanks :], *LOG_GAMMA_BOUNDS))
     u = np.asarray(simulate_star_tanks(g, gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf))
     n, a, k = prob.obs_step, prob.obs_alpha, prob.obs_tank
     prev = u[np.maximum(n - 1, 0), k]
@@ -213,6 +220,11 @@ def fit_two_tank(
 
     # A relative tolerance of 1e-5 on the cost moves AICc by less than 1e-3.
     best = least_squares(resid, theta0, method="lm", x_scale="jac", ftol=1e-5, xtol=1e-5, max_nfev=200)
+    if not (np.all(np.isfinite(best.x)) and np.all(np.isfinite(best.fun))):
+        raise InsufficientDataError("the two-tank fit did not settle on finite parameters")
+    best.x[1:] = np.clip(
+        best.x[1:], *np.array([LOG_GIIP_BOUNDS] * n_tanks + [LOG_GAMMA_BOUNDS] * (n_tanks - 1)).T
+    )
     return _model_fit(best, prob, layout, prepared, inputs, resid)
 
 
@@ -285,7 +297,7 @@ def _model_fit(res, prob, layout, prepared, inputs, resid) -> ModelFit:
         notes.append(f"parameters are strongly correlated (|r| up to {off.max():.3f})")
     total = float(g.sum())
     se_total = math.sqrt(variance(np.concatenate([[0.0], g, np.zeros(n_tanks - 1)])))
-    t = stats.t.ppf(0.5 + 0.5 * inputs.choices.confidence_level, dof)
+    t = t_multiplier(inputs.choices.confidence_level, dof)
     low = max(total - t * se_total, prepared.cumulative_gas_bscf) if math.isfinite(se_total) else None
     high = total + t * se_total if identifiable and math.isfinite(se_total) else None
     reported = total

@@ -5,13 +5,22 @@ from __future__ import annotations
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
-from ..db.models import Estimate, Field, FieldAnalysisSettings, PressureSurvey, ProductionMonth, Well
+from ..db.models import (
+    Estimate,
+    Field,
+    FieldAnalysisSettings,
+    PressureSurvey,
+    ProductionMonth,
+    VolumetricEstimate,
+    Well,
+)
 from ..engine import ENGINE_VERSION
 from ..engine.analysis import FieldAnalysis, analyse_field
 from ..engine.errors import EngineError
 from ..engine.inputs import AnalysisChoices, FieldInputs
 from ..engine.pvt import GasFluid
 from .fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
+from ..engine.volumetrics import VolumetricResult, volumetric_range
 from .serialize import fingerprint, to_jsonable
 
 
@@ -74,7 +83,19 @@ def load_field_inputs(session: Session, field: Field) -> FieldInputs:
         condensate_api=fl.condensate_api,
         lab_table=lab,
         choices=choices_from_settings(field.settings),
+        volumetric=latest_volumetric(session, field),
     )
+
+
+def latest_volumetric(session: Session, field: Field) -> VolumetricResult | None:
+    """The field's newest volumetric estimate (low/best/high), which the flags compare with."""
+    v = session.execute(
+        select(VolumetricEstimate)
+        .where(VolumetricEstimate.field_id == field.id)
+        .order_by(VolumetricEstimate.estimate_date.desc(), VolumetricEstimate.id.desc())
+        .limit(1)
+    ).scalar_one_or_none()
+    return None if v is None else volumetric_range(v.giip_low_bscf, v.giip_best_bscf, v.giip_high_bscf)
 
 
 def choices_from_settings(settings: FieldAnalysisSettings | None) -> AnalysisChoices:

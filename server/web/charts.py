@@ -285,6 +285,8 @@ def model_fits_figure(diagnosis: dict) -> dict:
     ]
     fits = {m["name"]: m for m in diagnosis.get("models") or []}
     ranked = [r["name"] for r in ((diagnosis.get("comparison") or {}).get("rows") or [])]
+    labels = diagnosis.get("compartment") or [None] * len(gp)
+    groups = sorted({lbl for lbl in labels if lbl is not None})
     dashes = ("solid", "dash", "dot", "dashdot", "longdash")
     for k, name in enumerate(ranked + [n for n in fits if n not in ranked]):
         m = fits.get(name)
@@ -292,17 +294,22 @@ def model_fits_figure(diagnosis: dict) -> dict:
             continue
         colour = MODEL_COLOURS.get(name, AQUIFER_COLOUR if name.startswith("aquifer_") else LINE_COLOUR)
         giip = m.get("giip_bscf")
-        traces.append(
-            {
-                "type": "scatter",
-                "mode": "lines",
-                "name": m["title"] + (f", GIIP {giip:,.1f} Bscf" if giip is not None else ""),
-                "x": [gp[i] for i in order],
-                "y": [m["fitted_pz_psia"][i] for i in order],
-                "line": {"color": colour, "width": 2, "dash": dashes[k % len(dashes)]},
-                "hovertemplate": "%{x:.2f} Bscf, %{y:.0f} psia<extra>" + name + "</extra>",
-            }
-        )
+        title = m["title"] + (f", GIIP {giip:,.1f} Bscf" if giip is not None else "")
+        # A multi-tank model predicts each compartment's own p/z: one line per compartment.
+        split = name in ("two_tank", "multi_tank") and len(groups) > 1
+        for group in groups if split else [None]:
+            idx = [i for i in order if not split or labels[i] == group]
+            traces.append(
+                {
+                    "type": "scatter",
+                    "mode": "lines",
+                    "name": title + (f" ({group})" if split else ""),
+                    "x": [gp[i] for i in idx],
+                    "y": [m["fitted_pz_psia"][i] for i in idx],
+                    "line": {"color": colour, "width": 2, "dash": dashes[k % len(dashes)]},
+                    "hovertemplate": "%{x:.2f} Bscf, %{y:.0f} psia<extra>" + name + "</extra>",
+                }
+            )
     return {"data": traces, "layout": _layout("Cumulative gas produced, Gp (Bscf)", "p/z (psia)")}
 
 

@@ -12,6 +12,9 @@ from ..services.portfolio import field_detail, portfolio_rows
 from .auth import Reader
 from .charts import pz_figure
 from .deps import SessionDep
+from .auth import Reader, Uploader
+from .charts import cole_figure, model_fits_figure, pz_figure
+from .deps import DatabaseDep, SessionDep, SettingsDep
 
 router = APIRouter(include_in_schema=False)
 
@@ -38,9 +41,14 @@ def field_page(request: Request, field_id: int, session: SessionDep, user: Reade
         raise HTTPException(status_code=404, detail="no such field")
     vol = dataclasses.asdict(detail.summary.volumetric) if detail.summary.volumetric else None
     figure = pz_figure(detail.detail, vol)
+    dg = detail.detail.get("diagnosis")
+    cole = (detail.detail.get("cole") or {}).get("plots")  # the aquifer analysis' Cole plots, when stored
     context = {
         "f": detail,
         "pz_figure": figure,
+        "dg": dg,
+        "model_fits_figure": model_fits_figure(dg) if dg else None,
+        "cole_figure": cole_figure(cole) if cole else None,
         "title": detail.summary.name,
         "audit_events": field_events(session, field_id),
     }

@@ -1,6 +1,5 @@
 """Model comparison: information criteria, F-tests, residual structure and the ranked table."""
 
-import itertools
 import math
 
 import numpy as np
@@ -11,11 +10,11 @@ from server.engine.compare import (
     information_criteria,
     lag1_autocorrelation,
     nested_f_test,
-    runs_test,
     support_label,
 )
-from server.engine.diagnosis import single_tank_fit
+from server.engine.inputs import AnalysisChoices
 from server.engine.modelfit import ModelFit
+from server.engine.overpressure import single_tank_modelfit
 from server.engine.prepare import prepare
 from server.engine.tanks_fit import fit_two_tank
 from tests.engine.cases import cv27_quarterly
@@ -43,30 +42,6 @@ def test_nested_f_test_reproduces_the_published_two_tank_numbers():
     assert (ft.df_num, ft.df_den) == (2, 29)
     assert ft.f_statistic == pytest.approx(18.31, abs=0.01)
     assert ft.p_value == pytest.approx(7.2e-6, rel=0.02)
-
-
-def _runs(signs):
-    return 1 + sum(1 for a, b in itertools.pairwise(signs) if a != b)
-
-
-@pytest.mark.parametrize(("a", "b"), [(3, 4), (5, 5), (6, 2), (7, 5)])
-def test_exact_runs_distribution_matches_enumeration(a, b):
-    # Independent oracle: enumerate every arrangement of a pluses and b minuses.
-    arrangements = [
-        tuple(1 if i in plus else -1 for i in range(a + b))
-        for plus in map(set, itertools.combinations(range(a + b), a))
-    ]
-    counts = [_runs(s) for s in arrangements]
-    for observed in sorted(set(counts)):
-        signs = next(s for s in arrangements if _runs(s) == observed)
-        rt = runs_test(np.array(signs, float))
-        assert rt.runs == observed
-        assert rt.p_too_few == pytest.approx(sum(c <= observed for c in counts) / len(counts), rel=1e-12)
-        assert rt.expected_runs == pytest.approx(np.mean(counts), rel=1e-12)
-
-
-def test_runs_test_needs_both_signs():
-    assert runs_test([1.0, 2.0, 0.0]) is None
 
 
 def test_lag1_autocorrelation_by_hand():
@@ -119,7 +94,7 @@ def test_check_value_27_two_tanks_preferred_by_aic_bic_and_f():
     # is preferred by AIC, BIC and the F-test.
     inputs = cv27_quarterly(noise_psia=15.0)
     prepared = prepare(inputs)
-    single = single_tank_fit(prepared)
+    single = single_tank_modelfit(prepared, AnalysisChoices())
     two = fit_two_tank(inputs, prepared)  # pseudo-pressure with LGE viscosity, as in §7.5
     _, gp, _, _ = prepared.arrays()
     cmp = compare_models([single, two], gp)
@@ -136,8 +111,8 @@ def test_runs_test_sees_the_concave_up_bend_of_a_compartmented_field():
     # Noise-free §7.5 history: a straight line through a concave-up p/z curve leaves
     # residuals +, -, + in three long runs; the runs test must call that structured.
     prepared = prepare(cv27_quarterly())
-    single = single_tank_fit(prepared)
+    single = single_tank_modelfit(prepared, AnalysisChoices())
     _, gp, _, _ = prepared.arrays()
     row = compare_models([single], gp).row("single_tank")
-    assert row.runs.runs <= 4 and row.runs.p_too_few < 1e-4
+    assert row.runs.n_runs <= 4 and row.runs.p_value < 1e-4
     assert row.lag1_autocorrelation > 0.5

@@ -25,7 +25,7 @@ THREE_WELLS = [
 # same form here so that the interval test measures noise, not model-form error (the
 # default pseudo-pressure form is checked against its own reference, check value 27).
 P2_FITTERS = (
-    DEFAULT_FITTERS[0],
+    *DEFAULT_FITTERS[:2],
     ("two_tank", lambda inputs, prepared: fit_two_tank(inputs, prepared, potential="pressure_squared")),
 )
 
@@ -108,8 +108,10 @@ def test_overpressured_field_is_flagged_for_overpressure_only():
     assert not flags & {"aquifer_signature", "compartment_signature", "too_little_depletion"}
     flag = next(f for f in d.flags if f.code == "overpressure_signature")
     assert flag.severity == "alert" and d.evidence.curvature.c2_psia_per_bscf2 < 0
-    # the straight line over-reads (§2.4); the single tank's interval does not hold the truth
+    # the straight line over-reads (§2.4); the constant-ce tank is preferred and holds the truth
     assert d.comparison.row("single_tank").giip_low_bscf > 100.0
+    assert d.comparison.preferred == "tank_ce"
+    _within_interval(d.comparison.row("tank_ce"), 100.0)
 
 
 @pytest.mark.parametrize(

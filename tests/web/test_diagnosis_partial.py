@@ -29,12 +29,13 @@ def test_compartmented_field_shows_its_flag_ranked_models_and_wells():
     flag = re.search(r'<li class="flag flag-alert" data-code="compartment_signature">(.*?)</li>', html, re.S)
     assert flag and "GRW-3" in flag.group(1) and "near the initial p/z" in flag.group(1)
     rows = re.findall(r'<tr data-model="([a-z_]+)">', html)
-    assert rows == ["two_tank", "single_tank"]  # ranked by AICc
+    assert rows == ["two_tank", "single_tank", "tank_ce"]  # ranked by AICc
     assert "little support" in html and "Best fit: Two tanks" in html
     assert re.search(r'<tr data-well="GRW-3">.*?disagrees, reads near initial', html, re.S)
     fig = model_fits_figure(dg)
     names = [t["name"] for t in fig["data"]]
     assert names[0] == "surveys used by every model" and names[1].startswith("Two tanks")
+    assert names[1].endswith("(East)") and names[2].endswith("(West)")  # one line per compartment
     assert fig["data"][1]["x"] == sorted(fig["data"][1]["x"])  # drawn along Gp
 
 

@@ -1,0 +1,47 @@
+"""Field and portfolio pages of the demo portfolio show the diagnosis a user needs:
+flags with reasons, the ranked models, the model-fit chart data, and flags per field."""
+
+import json
+import re
+
+from sqlalchemy import select
+
+from server.db.models import Field
+from server.services import jobs
+from server.services.demo import load_demo
+
+
+def _demo(db) -> dict[str, int]:
+    with db.session() as s:
+        load_demo(s)
+    jobs.drain(db)
+    with db.session() as s:
+        return {f.name: f.id for f in s.execute(select(Field)).scalars()}
+
+
+def test_field_page_shows_flags_model_table_and_chart(db, client):
+    ids = _demo(db)
+    html = client.get(f"/fields/{ids['Gorsewick']}").text
+    flags = re.search(r'<ul class="flags" id="flags".*?</ul>', html, re.S).group(0)
+    assert 'data-code="compartment_signature"' in flags and "GRW-3" in flags
+    assert re.findall(r'<tr data-model="([a-z_]+)">', html)[0] == "two_tank"
+    assert 'id="model-statement">Best fit: Two tanks' in html
+    fig = json.loads(re.search(r'id="model-fits-figure">(.*?)</script>', html, re.S).group(1))
+    names = [t["name"] for t in fig["data"]]  # surveys, the two-tank fit per compartment, two lines
+    assert len(names) == 5 and names[1].endswith("(East)") and names[2].endswith("(West)")
+    assert 'id="well-agreement"' in html and "reads near initial" in html
+    clean = client.get(f"/fields/{ids['Amberlode']}").text
+    assert 'id="flags">No flags' in clean
+
+
+def test_portfolio_page_lists_each_fields_flags(db, client):
+    ids = _demo(db)
+    html = client.get("/").text
+
+    def row(name):
+        return re.search(rf'<tr data-field-id="{ids[name]}">(.*?)</tr>', html, re.S).group(1)
+
+    assert 'data-code="aquifer_signature"' in row("Fallowmere")
+    assert 'data-code="compartment_signature"' in row("Gorsewick")
+    assert 'data-code="too_little_depletion"' in row("Dunmarrow")
+    assert "flag-list" not in row("Amberlode") and "within the range" in row("Amberlode")
