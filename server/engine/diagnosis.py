@@ -18,8 +18,10 @@ import numpy as np
 from .compare import ModelComparison, compare_models, curvature_test
 from .errors import EngineError
 from .flag_rules import raise_flags
-from .flags import ColeTrend, Evidence, Flag, Outlier, WaterTrend
+from .flags import Evidence, Flag, Outlier, WaterTrend
+from .history_match import fit_aquifer_models
 from .inputs import FieldInputs
+from .mbal import ColePlot, field_cole_plots
 from .modelfit import ModelFit
 from .overpressure import single_tank_modelfit, tank_ce_modelfit
 from .prepare import PreparedData
@@ -27,6 +29,9 @@ from .tanks_fit import fit_two_tank
 from .wells import WellFinding, robust_trend, well_disagreements
 
 Fitter = Callable[[FieldInputs, PreparedData], "ModelFit | Sequence[ModelFit]"]
+#: Models of a mechanism (a neighbour, an aquifer): not fitted with too little depletion,
+#: where they can only bend to the scatter.
+MECHANISM_FITTERS = frozenset({"two_tank", "aquifer models"})
 
 
 @dataclass(frozen=True)
@@ -45,6 +50,7 @@ class Diagnosis:
     gp_bscf: np.ndarray  # the included surveys every model is fitted to, in their order
     pz_psia: np.ndarray
     compartment: tuple[str | None, ...]  # each survey's well compartment label
+    cole_plots: tuple[ColePlot, ...]  # F/Eg (and F/(Eg + Efw) when ce is given) with trends
     models: tuple[ModelFit, ...]
     skipped: tuple[tuple[str, str], ...]  # (model, why it was not fitted)
     comparison: ModelComparison | None
@@ -57,6 +63,7 @@ DEFAULT_FITTERS: tuple[tuple[str, Fitter], ...] = (
     ("single_tank", lambda i, p: single_tank_modelfit(p, i.choices)),
     ("tank_ce", lambda i, p: tank_ce_modelfit(p, i.choices)),
     ("two_tank", lambda i, p: fit_two_tank(i, p)),
+    ("aquifer models", fit_aquifer_models),
 )
 
 
@@ -66,7 +73,6 @@ def diagnose_field(
     *,
     fitters: Sequence[tuple[str, Fitter]] = DEFAULT_FITTERS,
     headline: Headline | None = None,
-    cole: ColeTrend | None = None,
     outliers: tuple[Outlier, ...] | None = None,
 ) -> Diagnosis:
     """Fit every available model to one field, compare them and raise the flags.
@@ -79,23 +85,32 @@ def diagnose_field(
     headline : Headline, optional
         The dynamic estimate held against the volumetric range; the single-tank fit's
         GIIP and interval when omitted.
-    cole : ColeTrend, optional
-        The Cole-plot trend from the aquifer analysis.
     outliers : tuple of Outlier, optional
         Surveys the estimate's own outlier rule set aside (they are then no longer among
         the included points); when omitted, outliers are found from the robust trend.
     """
     th = inputs.flag_thresholds
+    wells = well_disagreements(
+        prepared,
+        k_sigma=th.well_disagreement_sigma,
+        min_points=th.well_min_points,
+        near_initial_ratio=th.near_initial_ratio,
+    )
+    state = _field_state(inputs, prepared, wells)
+    young = state.depletion_frac is not None and state.depletion_frac < th.min_depletion_frac
     fits: list[ModelFit] = []
     skipped = []
     for name, fitter in fitters:
+        if young and name in MECHANISM_FITTERS:
+            skipped.append((name, f"p/z has fallen {100 * state.depletion_frac:.1f} %: too little to fit"))
+            continue
         try:
             out = fitter(inputs, prepared)
         except EngineError as exc:
             skipped.append((name, str(exc)))
             continue
         fits.extend([out] if isinstance(out, ModelFit) else out)
-    _, gp, pz, w = prepared.arrays()
+    _, gp, pz, _ = prepared.arrays()
     comparison = (
         compare_models(
             fits,
@@ -106,31 +121,37 @@ def diagnose_field(
         if fits
         else None
     )
-    wells = well_disagreements(
-        prepared,
-        k_sigma=th.well_disagreement_sigma,
-        min_points=th.well_min_points,
-        near_initial_ratio=th.near_initial_ratio,
-    )
     if headline is None:
         single = next((f for f in fits if f.name == "single_tank" and f.giip_bscf is not None), None)
         if single is not None:
             headline = Headline(
                 single.name, single.giip_bscf, single.giip_low_bscf, single.giip_high_bscf, None
             )
-    evidence = _evidence(inputs, prepared, comparison, wells, headline, cole, outliers)
+    cole_plots = _cole_plots(inputs, prepared)
+    cole = cole_plots[0].trend if cole_plots else None
+    evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, outliers)
     labels = tuple(p.compartment for p in prepared.points if p.included)
     flags = raise_flags(evidence, th)
-    return Diagnosis(gp, pz, labels, tuple(fits), tuple(skipped), comparison, wells, evidence, flags)
+    return Diagnosis(
+        gp, pz, labels, cole_plots, tuple(fits), tuple(skipped), comparison, wells, evidence, flags
+    )
 
 
-def _evidence(inputs, prepared, comparison, wells, headline, cole, given_outliers) -> Evidence:
+@dataclass(frozen=True)
+class _State:
+    """What the data say before any model: trend, noise, outliers, depletion."""
+
+    outliers: tuple[Outlier, ...]
+    noise_psia: float | None
+    keep: np.ndarray  # included points left after outliers and disagreeing wells
+    depletion_frac: float | None
+
+
+def _field_state(inputs, prepared, wells) -> _State:
     th = inputs.flag_thresholds
     pts = [p for p in prepared.points if p.included]
     odd = {f.well for f in wells if f.disagrees}
     outliers, noise, keep = _outliers(inputs, pts, odd, th.outlier_sigma)
-    if given_outliers is not None:
-        outliers = tuple(given_outliers)
     gp = np.array([p.gp_bscf for p in pts])
     pz = np.array([p.pz_psia for p in pts])
     w = np.array([p.weight for p in pts])
@@ -140,6 +161,28 @@ def _evidence(inputs, prepared, comparison, wells, headline, cole, given_outlier
         depletion = 1.0 - float(trend(gp[keep].max())) / prepared.initial_pz_psia
     elif pts:
         depletion = 1.0 - float(min(pz)) / prepared.initial_pz_psia
+    return _State(outliers, noise, keep, depletion)
+
+
+def _cole_plots(inputs: FieldInputs, prepared: PreparedData) -> tuple[ColePlot, ...]:
+    """The Cole plot (and its modified form) of the included surveys; none if it cannot be made."""
+    if not any(p.included for p in prepared.points):
+        return ()
+    try:
+        plain, modified = field_cole_plots(inputs, prepared)
+    except EngineError:
+        return ()
+    return (plain,) if modified is None else (plain, modified)
+
+
+def _evidence(inputs, prepared, state, comparison, wells, headline, cole, given_outliers) -> Evidence:
+    th = inputs.flag_thresholds
+    pts = [p for p in prepared.points if p.included]
+    outliers = state.outliers if given_outliers is None else tuple(given_outliers)
+    keep, noise = state.keep, state.noise_psia
+    gp = np.array([p.gp_bscf for p in pts])
+    pz = np.array([p.pz_psia for p in pts])
+    w = np.array([p.weight for p in pts])
     tol = max(th.above_initial_sigma * (noise or 0.0) * prepared.initial_z, th.above_initial_min_psia)
     above = tuple(
         (p.well, p.t_days, p.p_datum_psia) for p in pts if p.p_datum_psia > inputs.initial_pressure_psia + tol
@@ -150,7 +193,7 @@ def _evidence(inputs, prepared, comparison, wells, headline, cole, given_outlier
         initial_pressure_psia=inputs.initial_pressure_psia,
         datum_depth_ft=inputs.datum_depth_ft,
         overpressure_mode=inputs.choices.overpressure_mode,
-        depletion_frac=depletion,
+        depletion_frac=state.depletion_frac,
         dynamic_method=None if headline is None else headline.method,
         dynamic_giip_bscf=None if headline is None else headline.giip_bscf,
         dynamic_low_bscf=None if headline is None else headline.low_bscf,

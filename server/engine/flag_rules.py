@@ -45,20 +45,25 @@ def _interval(ev: Evidence) -> str:
     return f"{ev.dynamic_giip_bscf:.0f} Bscf"
 
 
-def _best_other(ev: Evidence, th: FlagThresholds, prefix: str, *, identifiable: bool = False):
+def _best_other(ev: Evidence, th: FlagThresholds, prefix: str, *, identifiable: bool = False, strict=False):
     """The best-ranked model whose name starts with ``prefix``, if it is well supported:
-    comparable to the best model and ahead of the single tank by the preference margin
-    (and, if asked, with its parameters determined by the data)."""
+    comparable to the best model and ahead of the single tank by the preference margin.
+    With ``identifiable``, a model whose parameters the data do not determine must be
+    ahead by the larger ``unidentified_model_delta_aicc`` (a flexible model bends to
+    scatter; chance alone rarely buys it that much); with ``strict`` it does not count."""
     cmp = ev.comparison
     if cmp is None:
         return None, None
     single = cmp.row("single_tank")
     for r in cmp.rows:
-        if identifiable and not r.identifiable:
-            continue
         if r.name.startswith(prefix) and r.delta_aicc < th.comparable_delta_aicc:
             gain = None if single is None else single.aicc - r.aicc
-            if gain is not None and gain >= th.model_preference_delta_aicc:
+            need = th.model_preference_delta_aicc
+            if (identifiable or strict) and not r.identifiable:
+                if strict:
+                    continue
+                need = th.unidentified_model_delta_aicc
+            if gain is not None and gain >= need:
                 return r, gain
     return None, None
 
@@ -155,18 +160,29 @@ def _wells_disagree(ev: Evidence) -> list[WellFinding]:
 
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
     water = _water_rising(ev, th)
-    model, gain = _best_other(ev, th, "aquifer_") if judge else (None, None)
+    # Without rising water, an aquifer model whose parameters the data do not determine
+    # needs a larger margin: a flexible model also bends to the scatter.
+    model, gain = _best_other(ev, th, "aquifer_", identifiable=not water) if judge else (None, None)
+    c = ev.cole
     cole = (
         judge
-        and ev.cole is not None
-        and ev.cole.slope_bscf_per_bscf > 0
-        and ev.cole.p_value < th.cole_p_value
+        and c is not None
+        and c.direction == "rising"
+        and c.p_value < th.cole_p_value
+        and c.change_frac >= th.cole_min_change_frac
     )
-    ce_row, _ = _best_other(ev, th, "tank_ce")
     two, _ = _best_other(ev, th, "two_tank")
     # Rock and water expansion of an overpressured field and a small pot aquifer give the
-    # same balance; a rising Cole plot or a neighbour tank explain extra support as well.
-    explained_by_overpressure = _overpressured(ev, th) and ce_row is not None and not cole
+    # same balance: there only rising water, a rising Cole plot, or a time-dependent
+    # aquifer clearly beating the constant-ce tank point to an aquifer. A neighbour tank
+    # explains extra support as well as an aquifer does.
+    ce = ev.comparison.row("tank_ce") if ev.comparison else None
+    beats_ce = (
+        model is not None
+        and model.name != "aquifer_pot"
+        and (ce is None or ce.aicc - model.aicc >= th.comparable_delta_aicc)
+    )
+    explained_by_overpressure = _overpressured(ev, th) and not cole and not beats_ce
     explained_by_compartments = bool(_wells_disagree(ev)) or (two is not None and model is None)
     if not water and not (
         (model or cole) and not explained_by_overpressure and not explained_by_compartments
@@ -184,9 +200,10 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
             "late_wgr_stb_per_mmscf": _r(w.late_wgr_stb_per_mmscf),
         }
     if model:
+        same = " (a pot aquifer and rock and water expansion give the same balance)"
         parts.append(
             f"the {model.title} fits better than a single tank by {gain:.0f} AICc units "
-            f"(GIIP {model.giip_bscf:.0f} Bscf)"
+            f"(GIIP {model.giip_bscf:.0f} Bscf){same if model.name == 'aquifer_pot' and not water else ''}"
         )
         numbers |= {
             "aquifer_model": model.name,
@@ -194,12 +211,11 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
             "aquifer_giip_bscf": _r(model.giip_bscf),
         }
     if cole:
-        c = ev.cole
         parts.append(
-            f"the Cole plot F/Eg rises from {c.first_bscf:.0f} to {c.last_bscf:.0f} Bscf "
+            f"the Cole plot F/Eg rises by {100 * c.change_frac:.0f} % across the production "
             f"(p = {c.p_value:.2g})"
         )
-        numbers |= {"cole_slope": _r(c.slope_bscf_per_bscf, 4), "cole_p_value": _r(c.p_value, 6)}
+        numbers |= {"cole_change_frac": _r(c.change_frac, 4), "cole_p_value": _r(c.p_value, 6)}
     return Flag(
         "aquifer_signature",
         "alert" if water and (model or cole) else "warning",
@@ -213,9 +229,9 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
 def compartment_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
     odd = _wells_disagree(ev)
     # A neighbour tank the data cannot size is only curvature, which other causes share.
-    two, gain = _best_other(ev, th, "two_tank", identifiable=True) if judge else (None, None)
+    two, gain = _best_other(ev, th, "two_tank", strict=True) if judge else (None, None)
     if two is None and judge:
-        two, gain = _best_other(ev, th, "multi_tank", identifiable=True)
+        two, gain = _best_other(ev, th, "multi_tank", strict=True)
     # Rising water explains extra support as well as a neighbour does (domain reference §4.3).
     if not odd and (two is None or _water_rising(ev, th)):
         return None
@@ -252,9 +268,16 @@ def overpressure_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Fla
     c = ev.curvature
     bend = judge and c is not None and c.c2_psia_per_bscf2 < 0 and c.p_value < th.curvature_p_value
     model, gain = _best_other(ev, th, "tank_ce") if judge else (None, None)
-    # A finite aquifer that is running out also bends p/z down; rising water says which.
-    aquifer, _ = _best_other(ev, th, "aquifer_")
-    explained_by_aquifer = _water_rising(ev, th) or aquifer is not None
+    if model is None and judge and high:  # a pot aquifer is the same balance as a constant ce
+        model, gain = _best_other(ev, th, "aquifer_pot")
+    # A finite aquifer running out also bends p/z down, and a pot aquifer is the same balance
+    # as a constant ce: on a normally pressured field rising water or a comparable aquifer
+    # model leave the bend to the aquifer flag.
+    cmp = ev.comparison
+    aquifer_fits = bool(cmp) and any(
+        r.name.startswith("aquifer_") and r.delta_aicc < th.comparable_delta_aicc for r in cmp.rows
+    )
+    explained_by_aquifer = _water_rising(ev, th) or aquifer_fits
     if not (high or (bend and model and not explained_by_aquifer)):
         return None
     parts, numbers = [], {}
@@ -274,11 +297,16 @@ def overpressure_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Fla
             "curvature_p_value": _r(c.p_value, 6),
         }
     if model:
+        same = " (the same balance as rock and water expansion)" if model.name == "aquifer_pot" else ""
         parts.append(
-            f"the {model.title} model fits better than a single tank by {gain:.0f} AICc units "
+            f"the {model.title}{same} fits better than a single tank by {gain:.0f} AICc units "
             f"(GIIP {model.giip_bscf:.0f} Bscf)"
         )
-        numbers |= {"tank_ce_giip_bscf": _r(model.giip_bscf), "delta_aicc_vs_single_tank": _r(gain)}
+        numbers |= {
+            "model": model.name,
+            "model_giip_bscf": _r(model.giip_bscf),
+            "delta_aicc_vs_single_tank": _r(gain),
+        }
     corrected = ev.overpressure_mode != "off"
     tail = (
         ": the overpressure correction is applied"

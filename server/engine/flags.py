@@ -22,6 +22,7 @@ from .pz import MIN_DEPLETION_FRAC  # the p/z estimate refuses below the same fa
 
 if TYPE_CHECKING:  # annotations only: inputs.py imports this module
     from .compare import CurvatureTest, ModelComparison
+    from .mbal import ColeTrend
     from .volumetrics import VolumetricResult
     from .wells import WellFinding
 
@@ -35,11 +36,13 @@ class FlagThresholds:
     min_depletion_frac: float = MIN_DEPLETION_FRAC  # p/z fall below this: too little depletion
     min_surveys: int = 3  # included surveys needed to judge anything
     model_preference_delta_aicc: float = 10.0  # a mechanism model must beat the single tank by this
+    unidentified_model_delta_aicc: float = 30.0  # ... or by this when its parameters are undetermined
     comparable_delta_aicc: float = 2.0  # models closer than this to the best fit comparably
     overpressure_gradient_psi_per_ft: float = 0.55  # initial pressure / datum depth
     curvature_p_value: float = 0.01  # significance of the p/z bend
-    cole_p_value: float = 0.01  # significance of a Cole-plot trend
-    water_rise_factor: float = 3.0  # late / early water-gas ratio
+    cole_p_value: float = 0.01  # a Cole plot "rising" by the Cole rule must also be this significant
+    cole_min_change_frac: float = 0.05  # ... and rise by at least this share across the production
+    water_rise_factor: float = 2.0  # late / early water-gas ratio
     water_rise_min_stb_per_mmscf: float = 5.0  # and the late ratio at least this
     well_disagreement_sigma: float = 4.0  # median offset of a well in noise widths
     well_min_points: int = 2  # surveys of a well beyond that, on the same side
@@ -59,16 +62,6 @@ class Flag:
     title: str
     reason: str
     numbers: dict = field(default_factory=dict)
-
-
-@dataclass(frozen=True)
-class ColeTrend:
-    """Trend of the Cole plot F/Eg against Gp (from the aquifer analysis)."""
-
-    slope_bscf_per_bscf: float
-    p_value: float
-    first_bscf: float  # F/Eg at the first and last points used
-    last_bscf: float
 
 
 @dataclass(frozen=True)

@@ -39,6 +39,8 @@ from ..synthetic.tank import (
 from .jobs import enqueue_field_recompute
 
 BASIN = "Harrowfen Basin"
+CONDENSED_WATER_STB_PER_MMSCF = 1.0
+WATER_PRODUCED_SHARE = 0.15  # of the water influx, produced in the same month (rb taken as stb)
 LAST_MONTH = dt.date(2026, 10, 1)
 
 
@@ -329,12 +331,18 @@ def build_field_history(spec: DemoField, seed: int) -> dict:
     y = spec.condensate_stb_per_mmscf
     sep_mscf = wet_mscf / (1.0 + ge * y / 1e6)
     cond_stb = sep_mscf / 1e3 * y
+    # Water: condensed water (about 1 stb/MMscf) plus a share of each month's influx that
+    # reaches the wells. The forward model keeps all of We in the tank, so the share is kept
+    # small (WATER_PRODUCED_SHARE) to leave the balance nearly consistent.
+    influx_rb = np.diff(np.concatenate([[0.0], hist.we_rb]))
     production = []
     for k, m in enumerate(months):
         online = [w for w in producers if w.online <= m]
         shares = rng.dirichlet(np.full(len(online), 6.0))
         for w, s in zip(online, shares, strict=True):
-            water = sep_mscf[k] * s * 1e-3 * (1.0 + 40.0 * hist.we_rb[k] / 1e6)
+            water = (
+                sep_mscf[k] * 1e-3 * CONDENSED_WATER_STB_PER_MMSCF + WATER_PRODUCED_SHARE * influx_rb[k]
+            ) * s
             production.append((w.name, m, sep_mscf[k] * s, cond_stb[k] * s, water))
     surveys = []
     grid_t = np.concatenate([[0.0], t_end])

@@ -42,7 +42,7 @@ def field_page(request: Request, field_id: int, session: SessionDep, user: Reade
     vol = dataclasses.asdict(detail.summary.volumetric) if detail.summary.volumetric else None
     figure = pz_figure(detail.detail, vol)
     dg = detail.detail.get("diagnosis")
-    cole = (detail.detail.get("cole") or {}).get("plots")  # the aquifer analysis' Cole plots, when stored
+    cole = (dg or {}).get("cole_plots")
     context = {
         "f": detail,
         "pz_figure": figure,

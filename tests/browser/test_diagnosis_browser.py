@@ -13,4 +13,9 @@ def test_flags_and_model_comparison_in_the_browser(page, live_server, console_er
     assert "GRW-3" in flag.inner_text()
     assert page.locator("#model-comparison tbody tr").first.get_attribute("data-model") == "two_tank"
     page.locator("#diagnosis").screenshot(path=str(screenshot_dir / "diagnosis.png"))
+    page.goto(live_server + "/")
+    page.get_by_role("link", name="Fallowmere").click()
+    page.wait_for_selector("#chart-cole[data-drawn='true']", timeout=15000)
+    assert page.locator("#chart-cole .scatterlayer .trace").count() >= 2
+    page.locator("#diagnosis").screenshot(path=str(screenshot_dir / "diagnosis_aquifer.png"))
     assert console_errors == []

@@ -209,11 +209,11 @@ def synthetic_field(
     volumetric=None,
     datum_ft: float = 10000.0,
     water_base_stb_per_mmscf: float = 1.0,
-    water_per_mmrb_influx: float = 40.0,
+    water_produced_share: float = 0.15,
 ):
     """FieldInputs from the forward simulator: constant-rate monthly production, surveys
-    per well (see surveys_from_history), water production rising with the simulated
-    influx (a test scenario: base WGR plus a share proportional to We)."""
+    per well (see surveys_from_history), and water production: condensed water plus a
+    small share of each month's simulated influx (as the demo portfolio makes it)."""
     from server.synthetic.tank import simulate
 
     ends = monthly_ends(years)
@@ -222,7 +222,9 @@ def synthetic_field(
         hist, wells, pi_psia=spec.initial_pressure_psia, noise_psi=noise_psi, seed=seed
     )
     gas = np.full(ends.size, rate_mscf_d * MONTH_DAYS)
-    water = gas / 1e3 * (water_base_stb_per_mmscf + water_per_mmrb_influx * hist.we_rb / 1e6)
+    water = gas / 1e3 * water_base_stb_per_mmscf + water_produced_share * np.diff(
+        np.concatenate([[0.0], hist.we_rb])
+    )
     labelled = [c for c in comps if c]
     by_comp = (("West", gas),) if labelled else ()
     return field_inputs(

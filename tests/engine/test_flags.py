@@ -9,7 +9,8 @@ import pytest
 
 from server.engine.compare import CurvatureTest, compare_models
 from server.engine.flag_rules import raise_flags
-from server.engine.flags import ColeTrend, Evidence, FlagThresholds, Outlier, WaterTrend
+from server.engine.flags import Evidence, FlagThresholds, Outlier, WaterTrend
+from server.engine.mbal import ColeTrend
 from server.engine.modelfit import ModelFit
 from server.engine.volumetrics import volumetric_range
 from server.engine.wells import WellFinding
@@ -133,9 +134,13 @@ def test_aquifer_model_preference_needs_the_margin_over_a_single_tank():
 
 
 def test_cole_trend_alone_raises_the_aquifer_flag_unless_compartments_explain_it():
-    cole = ColeTrend(0.3, 1e-4, 90.0, 110.0)
-    assert "aquifer_signature" in codes(_ev(cole=cole))
-    assert "aquifer_signature" not in codes(_ev(cole=ColeTrend(0.3, 0.02, 90.0, 110.0)))
+    # (mbal.ColeTrend: direction, n, slope, se, intercept, t, p, change over the Gp range, its CI)
+    cole = ColeTrend("rising", 20, 0.3, 0.05, 90.0, 6.0, 1e-4, 0.15, (0.1, 0.2))
+    (flag,) = raise_flags(_ev(cole=cole))
+    assert flag.code == "aquifer_signature" and "rises by 15 % across the production" in flag.reason
+    # "rising" by the Cole rule (p < 0.05) but not at the flag's cole_p_value of 0.01
+    weak = ColeTrend("rising", 20, 0.3, 0.12, 90.0, 2.5, 0.02, 0.15, (0.02, 0.28))
+    assert "aquifer_signature" not in codes(_ev(cole=weak))
     odd = WellFinding("E-1", "East", 8, 900.0, 12.0, 75.0, 8, True, True, "E-1 reads high")
     assert codes(_ev(cole=cole, wells=(odd,))) == ["compartment_signature"]
 

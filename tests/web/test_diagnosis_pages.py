@@ -27,8 +27,9 @@ def test_field_page_shows_flags_model_table_and_chart(db, client):
     assert re.findall(r'<tr data-model="([a-z_]+)">', html)[0] == "two_tank"
     assert 'id="model-statement">Best fit: Two tanks' in html
     fig = json.loads(re.search(r'id="model-fits-figure">(.*?)</script>', html, re.S).group(1))
-    names = [t["name"] for t in fig["data"]]  # surveys, the two-tank fit per compartment, two lines
-    assert len(names) == 5 and names[1].endswith("(East)") and names[2].endswith("(West)")
+    names = [t["name"] for t in fig["data"]]  # surveys, the two-tank fit per compartment, the others
+    assert names[1].endswith("(East)") and names[2].endswith("(West)")
+    assert len(names) == 3 + 5  # two single-tank and three aquifer models: one line each
     assert 'id="well-agreement"' in html and "reads near initial" in html
     clean = client.get(f"/fields/{ids['Amberlode']}").text
     assert 'id="flags">No flags' in clean
@@ -45,3 +46,13 @@ def test_portfolio_page_lists_each_fields_flags(db, client):
     assert 'data-code="compartment_signature"' in row("Gorsewick")
     assert 'data-code="too_little_depletion"' in row("Dunmarrow")
     assert "flag-list" not in row("Amberlode") and "within the range" in row("Amberlode")
+
+
+def test_aquifer_field_page_shows_the_cole_plot(db, client):
+    ids = _demo(db)
+    html = client.get(f"/fields/{ids['Fallowmere']}").text
+    assert 'data-code="aquifer_signature"' in html
+    fig = json.loads(re.search(r'id="cole-figure">(.*?)</script>', html, re.S).group(1))
+    names = [t["name"] for t in fig["data"]]
+    assert names[0] == "F/Eg" and any(n.startswith("F/Eg trend: ") for n in names)
+    assert re.findall(r'<tr data-model="([a-z_]+)">', html)[0].startswith("aquifer_")

@@ -29,7 +29,7 @@ def test_compartmented_field_shows_its_flag_ranked_models_and_wells():
     flag = re.search(r'<li class="flag flag-alert" data-code="compartment_signature">(.*?)</li>', html, re.S)
     assert flag and "GRW-3" in flag.group(1) and "near the initial p/z" in flag.group(1)
     rows = re.findall(r'<tr data-model="([a-z_]+)">', html)
-    assert rows == ["two_tank", "single_tank", "tank_ce"]  # ranked by AICc
+    assert rows[:2] == ["two_tank", "single_tank"] and len(rows) == 6  # ranked by AICc
     assert "little support" in html and "Best fit: Two tanks" in html
     assert re.search(r'<tr data-well="GRW-3">.*?disagrees, reads near initial', html, re.S)
     fig = model_fits_figure(dg)
