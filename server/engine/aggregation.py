@@ -19,6 +19,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from scipy import stats
 
 from .errors import InputRangeError
 from .volumetrics import DEFAULT_TRIALS, split_lognormal_quantile
@@ -34,8 +35,9 @@ class FieldVolume:
     best_bscf: float | None = None
     high_bscf: float | None = None
 
-    def trials(self, n: int) -> np.ndarray:
-        """n values of the field's distribution, ascending."""
+    def trials(self, n: int, z=None) -> np.ndarray:
+        """n values of the field's distribution, ascending (``z``: the standard-normal
+        quantiles of the n stratified probabilities, shared by many fields)."""
         if self.samples_bscf is not None:
             s = np.sort(np.asarray(self.samples_bscf, float))
             return s if s.size == n else np.quantile(s, (np.arange(n) + 0.5) / n)
@@ -44,7 +46,7 @@ class FieldVolume:
             raise InputRangeError(f"{self.name}: needs trials or 0 < low <= best <= high")
         if lo == hi:
             return np.full(n, float(best))
-        return split_lognormal_quantile(lo, best, hi, (np.arange(n) + 0.5) / n)
+        return split_lognormal_quantile(lo, best, hi, (np.arange(n) + 0.5) / n, z=z)
 
 
 @dataclass(frozen=True)
@@ -85,10 +87,14 @@ def aggregate_portfolio(
     k = len(fields)
     if not 0.0 <= rank_correlation <= 1.0:
         raise InputRangeError("the rank correlation between fields must lie between 0 and 1")
-    values = np.column_stack([f.trials(trials) for f in fields])  # each column ascending
+    z = stats.norm.ppf((np.arange(trials) + 0.5) / trials)
+    values = np.column_stack([f.trials(trials, z) for f in fields])  # each column ascending
     if rank_correlation >= 1.0 - 1e-12 or k == 1:
         total = values.sum(axis=1)
         dependence = "fully dependent (comonotone)" if k > 1 else "single field"
+    elif rank_correlation == 0.0:  # independent: a random order per field is enough
+        total = np.random.default_rng(seed).permuted(values, axis=0).sum(axis=1)
+        dependence = "independent fields"
     else:
         rho = 2.0 * math.sin(math.pi * rank_correlation / 6.0)
         rng = np.random.default_rng(seed)
@@ -96,12 +102,8 @@ def aggregate_portfolio(
         z = math.sqrt(rho) * common + math.sqrt(1.0 - rho) * rng.standard_normal((trials, k))
         ranks = np.argsort(np.argsort(z, axis=0), axis=0)
         total = np.take_along_axis(values, ranks, axis=0).sum(axis=1)
-        dependence = (
-            "independent fields"
-            if rank_correlation == 0.0
-            else f"rank correlation {rank_correlation:g} between every pair of fields"
-        )
-    p90s, p50s, p10s = np.percentile(values, [10, 50, 90], axis=0)
+        dependence = f"rank correlation {rank_correlation:g} between every pair of fields"
+    p90s, p50s, p10s = _percentiles_of_sorted(values, (10, 50, 90))
     t90, t50, t10 = np.percentile(total, [10, 50, 90])
     return PortfolioTotal(
         k,
@@ -116,3 +118,15 @@ def aggregate_portfolio(
         trials,
         seed,
     )
+
+
+def _percentiles_of_sorted(values: np.ndarray, qs) -> list[np.ndarray]:
+    """Percentiles of ascending columns, as numpy's default (linear) method, without sorting."""
+    n = values.shape[0]
+    out = []
+    for q in qs:
+        pos = q / 100.0 * (n - 1)
+        i = min(int(pos), n - 2) if n > 1 else 0
+        frac = pos - i
+        out.append(values[i] + frac * (values[min(i + 1, n - 1)] - values[i]))
+    return out

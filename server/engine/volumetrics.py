@@ -227,15 +227,15 @@ def giip_monte_carlo(inputs: VolumetricInputs, *, trials: int = DEFAULT_TRIALS, 
     return summarise_bscf(giip_samples_bscf(inputs, trials=trials, seed=seed), seed=seed)
 
 
-def split_lognormal_quantile(low: float, best: float, high: float, u):
+def split_lognormal_quantile(low: float, best: float, high: float, u, z=None):
     """Quantiles of the two-piece lognormal with P90 = low, P50 = best, P10 = high.
 
     ln X is normal with median ln(best) and a different spread on either side,
     σ_low = ln(best/low)/z_0.9 and σ_high = ln(high/best)/z_0.9; it reproduces the three
     values exactly and stays positive. Our choice for aggregating fields known only by
-    low/best/high.
+    low/best/high. ``z``, if given, is stats.norm.ppf(u) computed once for many fields.
     """
-    z = stats.norm.ppf(np.asarray(u, float))
+    z = stats.norm.ppf(np.asarray(u, float)) if z is None else np.asarray(z, float)
     s_lo, s_hi = math.log(best / low) / Z90, math.log(high / best) / Z90
     return best * np.exp(np.where(z < 0, s_lo, s_hi) * z)
 

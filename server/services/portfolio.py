@@ -12,6 +12,7 @@ from sqlalchemy import func, select
 from sqlalchemy.orm import Session, selectinload
 
 from ..db.models import Estimate, Field, PressureSurvey, VolumetricEstimate, Well
+from ..engine.aggregation import FieldVolume, PortfolioTotal, aggregate_portfolio
 
 
 @dataclass(frozen=True)
@@ -195,4 +196,41 @@ def field_detail(session: Session, field_id: int) -> FieldDetail | None:
         f.description,
         wells,
         dict(est.detail) if est else {},
+    )
+
+
+#: Trials for the portfolio totals on the page: percentiles of the total to about 0.5 %.
+TOTAL_TRIALS = 5000
+
+
+@dataclass(frozen=True)
+class PortfolioTotals:
+    """Totals of the fields' volumetric and dynamic GIIP ranges (None when no field has one)."""
+
+    volumetric: PortfolioTotal | None
+    dynamic: PortfolioTotal | None
+
+
+def portfolio_totals(rows: list[PortfolioRow]) -> PortfolioTotals:
+    """Arithmetic sums of P90/P50/P10 and the probabilistic total of independent fields.
+
+    Volumetric: each field's latest low/best/high. Dynamic: the stored estimate's
+    low/best/high (the P90/P10 of its bootstrap, or its interval when there is none).
+    """
+    vol = [
+        FieldVolume(r.name, low_bscf=v.low_bscf, best_bscf=v.best_bscf, high_bscf=v.high_bscf)
+        for r in rows
+        if (v := r.volumetric) is not None
+    ]
+    dyn = [
+        FieldVolume(r.name, low_bscf=e.giip_low_bscf, best_bscf=e.giip_best_bscf, high_bscf=e.giip_high_bscf)
+        for r in rows
+        if (e := r.estimate) is not None
+        and e.status == "ok"
+        and None not in (e.giip_low_bscf, e.giip_best_bscf, e.giip_high_bscf)
+        and 0 < e.giip_low_bscf <= e.giip_best_bscf <= e.giip_high_bscf
+    ]
+    return PortfolioTotals(
+        aggregate_portfolio(vol, trials=TOTAL_TRIALS) if vol else None,
+        aggregate_portfolio(dyn, trials=TOTAL_TRIALS) if dyn else None,
     )

@@ -12,6 +12,9 @@ from ..services.portfolio import field_detail, portfolio_rows
 from .auth import Reader
 from .charts import pz_figure
 from .deps import SessionDep
+from ..services.ingest.kinds import UPLOAD_KINDS, file_kind
+from ..services.ingest.service import commit_upload, validate_upload
+from ..services.portfolio import field_detail, portfolio_rows, portfolio_totals
 from .auth import Reader, Uploader
 from .charts import cole_figure, model_fits_figure, pz_figure
 from .deps import DatabaseDep, SessionDep, SettingsDep
@@ -31,7 +34,8 @@ def render(request: Request, template: str, context: dict, status_code: int = 20
 @router.get("/", response_class=HTMLResponse, name="portfolio")
 def portfolio_page(request: Request, session: SessionDep, user: Reader):
     rows = portfolio_rows(session, user.asset_ids)
-    return render(request, "portfolio.html", {"rows": rows, "title": "Portfolio"})
+    context = {"rows": rows, "totals": portfolio_totals(rows), "title": "Portfolio"}
+    return render(request, "portfolio.html", context)
 
 
 @router.get("/fields/{field_id}", response_class=HTMLResponse, name="field_page")

@@ -56,3 +56,17 @@ def test_aquifer_field_page_shows_the_cole_plot(db, client):
     names = [t["name"] for t in fig["data"]]
     assert names[0] == "F/Eg" and any(n.startswith("F/Eg trend: ") for n in names)
     assert re.findall(r'<tr data-model="([a-z_]+)">', html)[0].startswith("aquifer_")
+
+
+def test_portfolio_totals_add_means_not_percentiles(db, client):
+    # Check value 34 on the page: for independent fields the total's P90 is above the sum
+    # of the P90s and its P10 below the sum of the P10s.
+    _demo(db)
+    html = client.get("/").text
+    row = re.search(r'<tr data-total="volumetric">(.*?)</tr>', html, re.S).group(1)
+    cells = re.findall(r'<td class="num">([^<]*)</td>', row)
+    n, p90s, _, p10s, _ = (float(c.replace(",", "")) for c in cells[:5])
+    t90, _, t10 = (float(x.replace(",", "")) for x in cells[5].split(" / "))
+    assert n == 12 and t90 > p90s and t10 < p10s
+    assert "independent fields" in row
+    assert re.search(r'<tr data-total="dynamic">', html)
