@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import dataclasses
+
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
@@ -19,8 +21,8 @@ from ..engine.analysis import FieldAnalysis, analyse_field
 from ..engine.errors import EngineError
 from ..engine.inputs import AnalysisChoices, FieldInputs
 from ..engine.pvt import GasFluid
-from .fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
 from ..engine.volumetrics import VolumetricResult, volumetric_range
+from .fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
 from .serialize import fingerprint, to_jsonable
 
 
@@ -53,7 +55,7 @@ def load_field_inputs(session: Session, field: Field) -> FieldInputs:
     ).all()
     fl = field.fluid
     lab = lab_table_from_points([(p.pressure_psia, p.z_factor, p.bg_rcf_per_scf) for p in fl.lab_points])
-    return build_field_inputs(
+    inputs = build_field_inputs(
         fluid=GasFluid(fl.gas_gravity, fl.y_co2_frac, fl.y_h2s_frac, fl.y_n2_frac),
         reservoir_temperature_degF=field.reservoir_temperature_degF,
         initial_pressure_psia=field.initial_pressure_psia,
@@ -83,8 +85,8 @@ def load_field_inputs(session: Session, field: Field) -> FieldInputs:
         condensate_api=fl.condensate_api,
         lab_table=lab,
         choices=choices_from_settings(field.settings),
-        volumetric=latest_volumetric(session, field),
     )
+    return dataclasses.replace(inputs, volumetric=latest_volumetric(session, field))
 
 
 def latest_volumetric(session: Session, field: Field) -> VolumetricResult | None:

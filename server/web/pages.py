@@ -8,16 +8,10 @@ from fastapi import APIRouter, HTTPException, Request
 from fastapi.responses import HTMLResponse
 
 from ..services.audit import field_events
-from ..services.portfolio import field_detail, portfolio_rows
-from .auth import Reader
-from .charts import pz_figure
-from .deps import SessionDep
-from ..services.ingest.kinds import UPLOAD_KINDS, file_kind
-from ..services.ingest.service import commit_upload, validate_upload
 from ..services.portfolio import field_detail, portfolio_rows, portfolio_totals
-from .auth import Reader, Uploader
+from .auth import Reader
 from .charts import cole_figure, model_fits_figure, pz_figure
-from .deps import DatabaseDep, SessionDep, SettingsDep
+from .deps import SessionDep
 
 router = APIRouter(include_in_schema=False)
 
