@@ -19,6 +19,7 @@ from .services.worker import Worker
 from .settings import PROJECT_ROOT, Settings
 from .web import account_pages, admin_pages, api, api_accounts, api_uploads, pages, uploads
 from .web.auth import Public, Reader, document_auth_errors
+from .web.display import units_for_request
 from .web.errors import install_error_handlers
 from .web.limits import UploadLimitMiddleware
 from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
@@ -29,9 +30,13 @@ PLOTLY_JS = Path(plotly.__file__).parent / "package_data" / "plotly.min.js"
 
 
 def _auth_context(request: Request) -> dict:
-    """Every template knows who is logged in and the form token of their session."""
+    """Every template knows who is logged in, their session's form token and their display units."""
     principal = getattr(request.state, "principal", None)
-    return {"current_user": principal, "csrf_token": principal.csrf_token if principal else ""}
+    return {
+        "current_user": principal,
+        "csrf_token": principal.csrf_token if principal else "",
+        "du": units_for_request(request),
+    }
 
 
 def create_app(settings: Settings | None = None, database: Database | None = None) -> FastAPI:

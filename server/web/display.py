@@ -125,3 +125,14 @@ class DisplayUnits:
     def show_with_unit(self, kind: str, stored: float | None, digits: int | None = None) -> str:
         text = self.show(kind, stored, digits)
         return text if text == DASH else f"{text} {self.label(kind)}"
+
+
+def units_for_request(request) -> DisplayUnits:
+    """The display units of this request: the user's choice if they made one, else the
+    installation's default (``Settings.display_units``), at the storage basis."""
+    from ..engine.units import standard_conditions
+
+    settings = request.app.state.settings
+    principal = getattr(request.state, "principal", None)
+    system = getattr(principal, "unit_system", None) or settings.display_units
+    return DisplayUnits(system, standard_conditions(settings.standard_conditions))
