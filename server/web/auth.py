@@ -34,7 +34,7 @@ from ..services.accounts import allowed_assets
 from ..services.audit import Actor
 from ..services.credentials import SessionTimeouts, live_api_token, live_session
 from ..services.permissions import Permission, role_permissions, token_permissions
-from .deps import get_session
+from .deps import SessionDep
 
 SESSION_COOKIE = "tb_session"
 UNSAFE_METHODS = frozenset({"POST", "PUT", "PATCH", "DELETE"})
@@ -187,7 +187,7 @@ class PermissionCheck:
     def __call__(
         self,
         request: Request,
-        session: Annotated[Session, Depends(get_session)],
+        session: SessionDep,
         form_token: Annotated[str, Depends(sent_form_token)],
         _bearer_doc: Annotated[object, Depends(_bearer)] = None,  # documents the scheme in OpenAPI
     ) -> Principal:
@@ -235,7 +235,7 @@ SettingsAdmin = Annotated[Principal, Require(Permission.MANAGE_SETTINGS)]
 
 
 def optional_principal(
-    request: Request, session: Annotated[Session, Depends(get_session)]
+    request: Request, session: SessionDep
 ) -> Principal | None:
     """For public pages that look different when someone is logged in (the login page)."""
     try:

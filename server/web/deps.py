@@ -24,11 +24,14 @@ def get_database(request: Request) -> Database:
 
 
 def get_session(request: Request) -> Iterator[Session]:
-    """A request-scoped session: committed when the route returns, rolled back on error."""
+    """A session for one route call: committed when the route returns and before the
+    response is sent (scope="function"), rolled back on error. With FastAPI's default
+    "request" scope the commit would run after the response left, so a client could be
+    told "stored" (or follow a login redirect) before the transaction had committed."""
     with request.app.state.db.session() as session:
         yield session
 
 
 SettingsDep = Annotated[Settings, Depends(get_settings)]
 DatabaseDep = Annotated[Database, Depends(get_database)]
-SessionDep = Annotated[Session, Depends(get_session)]
+SessionDep = Annotated[Session, Depends(get_session, scope="function")]

@@ -83,7 +83,8 @@ def log_in(page, base_url: str, username: str, password: str = TEST_PASSWORD) ->
 def page(anon_page, live_server):
     """A browser logged in as an engineer through the login page."""
     log_in(anon_page, live_server, BROWSER_USERS["engineer"])
-    assert anon_page.locator("#account-link").count() == 1, "login through the page failed"
+    if anon_page.locator("#account-link").count() != 1:
+        pytest.fail(f"login through the page failed at {anon_page.url}: {anon_page.content()[-1500:]}")
     return anon_page
 
 
