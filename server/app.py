@@ -15,9 +15,10 @@ from fastapi.staticfiles import StaticFiles
 from .db.base import utcnow
 from .db.session import Database
 from .engine import ENGINE_VERSION
+from .services.team_settings import pin_storage_basis
 from .services.worker import Worker
 from .settings import PROJECT_ROOT, Settings
-from .web import account_pages, admin_pages, api, api_accounts, api_uploads, pages, uploads
+from .web import account_pages, admin_pages, api, api_accounts, api_settings, api_uploads, pages, uploads
 from .web.auth import Public, Reader, document_auth_errors
 from .web.display import units_for_request
 from .web.errors import install_error_handlers
@@ -53,6 +54,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
         owned = app.state.db is None
         if owned:
             app.state.db = Database(settings.database_url)
+        pin_storage_basis(app.state.db, settings)
         app.state.worker = None
         if settings.job_runner == "thread":
             app.state.worker = Worker(
@@ -114,6 +116,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(api.router)
     app.include_router(api_uploads.router)
     app.include_router(api_accounts.router)
+    app.include_router(api_settings.router)
     app.include_router(account_pages.router)
     app.include_router(admin_pages.router)
     app.include_router(pages.router)

@@ -23,8 +23,21 @@ def cmd_migrate(args) -> int:
 
         Path(settings.database_url.removeprefix("sqlite:///")).parent.mkdir(parents=True, exist_ok=True)
     upgrade(settings.database_url)
+    _pin(settings)
     print("database schema is up to date")
     return 0
+
+
+def _pin(settings, db=None) -> None:
+    """Pin the storage basis of gas volumes (services/team_settings.py) before any is stored."""
+    from .db.session import Database
+    from .services.team_settings import pin_storage_basis
+
+    own = db is None
+    db = db or Database(settings.database_url)
+    pin_storage_basis(db, settings)
+    if own:
+        db.dispose()
 
 
 def cmd_demo(args) -> int:
@@ -32,7 +45,9 @@ def cmd_demo(args) -> int:
     from .services import jobs
     from .services.demo import demo_is_loaded, load_demo
 
-    db = Database(_settings().database_url)
+    settings = _settings()
+    db = Database(settings.database_url)
+    _pin(settings, db)
     with db.session() as session:
         loaded = demo_is_loaded(session)
         if not loaded:
@@ -194,6 +209,7 @@ def cmd_worker(args) -> int:
 
     settings = _settings()
     db = Database(settings.database_url)
+    _pin(settings, db)
     worker = Worker(
         db,
         poll_seconds=settings.job_poll_seconds,

@@ -15,9 +15,11 @@ initial pressure gradient).
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import math
+from dataclasses import dataclass, field, fields
 from typing import TYPE_CHECKING
 
+from .errors import EngineError
 from .pz import MIN_DEPLETION_FRAC  # the p/z estimate refuses below the same fall
 
 if TYPE_CHECKING:  # annotations only: inputs.py imports this module
@@ -53,6 +55,92 @@ class FlagThresholds:
     survey_gap_days: float = 3 * 365.25  # no survey for this long while producing
     production_gap_days: float = 62.0  # a production period longer than this (missing months)
     max_scatter_frac: float = 0.01  # survey noise on p/z above this share of the initial p/z
+
+    def __post_init__(self):
+        for f in fields(self):
+            check_threshold(f.name, getattr(self, f.name))
+
+
+class FlagThresholdError(EngineError):
+    """A flag threshold outside the range in which its rule means anything."""
+
+
+@dataclass(frozen=True)
+class ThresholdLimits:
+    """The range a threshold may be set to (inclusive), its unit and what it means."""
+
+    low: float
+    high: float
+    unit: str
+    meaning: str
+    integer: bool = False
+
+
+#: Every threshold's allowed range. The ranges keep each rule meaningful (a p-value in
+#: (0, 0.5], a sigma count that is not below one noise width, ...); the defaults and
+#: their reasons are in docs/flags.md.
+THRESHOLD_LIMITS: dict[str, ThresholdLimits] = {
+    "min_depletion_frac": ThresholdLimits(
+        0.01, 0.5, "fraction", "p/z fall below which there is too little depletion to judge"
+    ),
+    "min_surveys": ThresholdLimits(2, 20, "surveys", "included surveys needed to judge anything", True),
+    "model_preference_delta_aicc": ThresholdLimits(
+        2.0, 100.0, "AICc", "margin by which a mechanism model must beat the single tank"
+    ),
+    "unidentified_model_delta_aicc": ThresholdLimits(
+        2.0, 200.0, "AICc", "margin when the mechanism model's parameters are not determined"
+    ),
+    "comparable_delta_aicc": ThresholdLimits(0.5, 10.0, "AICc", "models closer than this fit comparably"),
+    "overpressure_gradient_psi_per_ft": ThresholdLimits(
+        0.44, 1.0, "psi/ft", "initial pressure / datum depth at or above which a field is overpressured"
+    ),
+    "curvature_p_value": ThresholdLimits(1e-6, 0.2, "p-value", "significance of the p/z bend"),
+    "cole_p_value": ThresholdLimits(1e-6, 0.2, "p-value", "significance of a rising Cole plot"),
+    "cole_min_change_frac": ThresholdLimits(
+        0.0, 1.0, "fraction", "rise of F/Eg across the production a rising Cole plot needs"
+    ),
+    "water_rise_factor": ThresholdLimits(1.1, 20.0, "ratio", "late / early water-gas ratio that is rising"),
+    "water_rise_min_stb_per_mmscf": ThresholdLimits(
+        0.0, 1000.0, "stb/MMscf", "late water-gas ratio a rising water trend needs"
+    ),
+    "well_disagreement_sigma": ThresholdLimits(
+        1.0, 20.0, "noise widths", "median offset of a well from the others that is a disagreement"
+    ),
+    "well_min_points": ThresholdLimits(1, 20, "surveys", "surveys of a well beyond that, on one side", True),
+    "near_initial_ratio": ThresholdLimits(
+        0.0, 0.9, "fraction", "share of the others' p/z fall a well reading near initial has seen"
+    ),
+    "outlier_sigma": ThresholdLimits(2.0, 20.0, "noise widths", "offset from the trend that is an outlier"),
+    "above_initial_sigma": ThresholdLimits(
+        1.0, 20.0, "noise widths", "excess over the initial pressure that is suspicious"
+    ),
+    "above_initial_min_psia": ThresholdLimits(
+        0.0, 1000.0, "psi", "and the least excess over the initial pressure that is suspicious"
+    ),
+    "survey_gap_days": ThresholdLimits(30.0, 7305.0, "days", "time without a survey while producing"),
+    "production_gap_days": ThresholdLimits(
+        32.0, 3653.0, "days", "production period that suggests missing months"
+    ),
+    "max_scatter_frac": ThresholdLimits(
+        1e-4, 0.2, "fraction", "survey scatter on p/z, as a share of the initial p/z, that is too large"
+    ),
+}
+
+
+def check_threshold(name: str, value) -> None:
+    """Raise :class:`FlagThresholdError` unless ``value`` is allowed for threshold ``name``."""
+    try:
+        lim = THRESHOLD_LIMITS[name]
+    except KeyError:
+        raise FlagThresholdError(f"unknown flag threshold {name!r}") from None
+    if isinstance(value, bool) or not isinstance(value, int | float) or not math.isfinite(value):
+        raise FlagThresholdError(f"flag threshold {name} must be a finite number, got {value!r}")
+    if lim.integer and value != int(value):
+        raise FlagThresholdError(f"flag threshold {name} must be a whole number, got {value!r}")
+    if not lim.low <= value <= lim.high:
+        raise FlagThresholdError(
+            f"flag threshold {name} must lie between {lim.low:g} and {lim.high:g} {lim.unit}, got {value:g}"
+        )
 
 
 @dataclass(frozen=True)

@@ -63,14 +63,16 @@ def enqueue_field_recompute(session: Session, field_ids, reason: str) -> list[Jo
     return jobs
 
 
-def enqueue_portfolio_recompute(session: Session, reason: str) -> Job:
-    """Queue a recompute of every field, or return the one already queued or running."""
+def enqueue_portfolio_recompute(session: Session, reason: str, *, reuse_running: bool = True) -> Job:
+    """Queue a recompute of every field, or return the one already queued (or running).
+
+    ``reuse_running=False`` when what every field reads has just changed (team settings): a
+    running job may already have passed some fields, so only a queued one will do."""
     write_first(session)
+    reusable = ("queued", "running") if reuse_running else ("queued",)
     current = (
         session.execute(
-            select(Job)
-            .where(Job.kind == PORTFOLIO_JOB, Job.status.in_(("queued", "running")))
-            .order_by(Job.id)
+            select(Job).where(Job.kind == PORTFOLIO_JOB, Job.status.in_(reusable)).order_by(Job.id)
         )
         .scalars()
         .first()

@@ -24,6 +24,7 @@ from ..engine.pvt import GasFluid
 from ..engine.volumetrics import VolumetricResult, volumetric_range
 from .fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
 from .serialize import fingerprint, to_jsonable
+from .team_settings import engine_settings
 
 
 class FieldNotReadyError(Exception):
@@ -86,7 +87,13 @@ def load_field_inputs(session: Session, field: Field) -> FieldInputs:
         lab_table=lab,
         choices=choices_from_settings(field.settings),
     )
-    return dataclasses.replace(inputs, volumetric=latest_volumetric(session, field))
+    basis, thresholds = engine_settings(session)
+    return dataclasses.replace(
+        inputs,
+        volumetric=latest_volumetric(session, field),
+        standard_conditions=basis,
+        flag_thresholds=thresholds,
+    )
 
 
 def latest_volumetric(session: Session, field: Field) -> VolumetricResult | None:

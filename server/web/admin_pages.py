@@ -1,17 +1,22 @@
-"""Administration: users (roles, asset access, status, password resets), the audit trail and the
-deployment's settings."""
+"""Administration: users (roles, asset access, status, password resets), the audit trail, the
+team settings (edited here) and the deployment's settings (read from the environment)."""
 
 from __future__ import annotations
 
+import dataclasses
 from typing import Annotated
 
 from fastapi import APIRouter, Form, HTTPException, Request
+from fastapi.concurrency import run_in_threadpool
 from fastapi.responses import HTMLResponse, RedirectResponse
 
 from ..db.models import User
-from ..services import accounts, audit
+from ..engine.flags import THRESHOLD_LIMITS, FlagThresholds
+from ..engine.units import STANDARD_CONDITIONS
+from ..services import accounts, audit, team_settings
 from ..services.passwords import PasswordPolicyError
 from ..services.permissions import ROLE_ORDER, ROLE_TITLES
+from .api_uploads import jobs_queued
 from .auth import Auditor, SettingsAdmin, UserAdmin, now
 from .deps import SessionDep, SettingsDep
 from .pages import render
@@ -181,15 +186,71 @@ def audit_page(
 
 
 @router.get("/settings", response_class=HTMLResponse, name="admin_settings")
-def settings_page(request: Request, settings: SettingsDep, user: SettingsAdmin):
-    shown = []
+def settings_page(request: Request, session: SessionDep, settings: SettingsDep, user: SettingsAdmin):
+    return render(request, "admin_settings.html", _settings_context(session, settings))
+
+
+@router.post("/settings", response_class=HTMLResponse)
+async def save_settings(request: Request, session: SessionDep, settings: SettingsDep, user: SettingsAdmin):
+    """Store the changed team settings (every value of the form is checked; nothing is stored
+    unless all are acceptable)."""
+    form = await request.form()
+    keys = (*team_settings.UNIT_KEYS, *team_settings.THRESHOLD_KEYS)
+    values = {k: form[k] for k in keys if isinstance(form.get(k), str)}
+    return await run_in_threadpool(_save_settings, request, session, settings, user, values)
+
+
+def _save_settings(request, session, settings, user, values: dict):
+    try:
+        outcome = team_settings.update(session, user.actor, settings, values)
+    except team_settings.TeamSettingsError as exc:
+        session.rollback()
+        context = _settings_context(session, settings, problems=exc.problems, submitted=values)
+        return render(request, "admin_settings.html", context, 422)
+    session.commit()
+    request.state.team_settings = None  # this request's display units were read before the change
+    if outcome.recompute_job_id is not None:
+        jobs_queued(request)
+    return render(request, "admin_settings.html", _settings_context(session, settings, saved=outcome))
+
+
+def _settings_context(session, settings, **extra) -> dict:
+    team = team_settings.current(session, settings)
+    rows = []
+    for f in dataclasses.fields(FlagThresholds):
+        key = team_settings.THRESHOLD_PREFIX + f.name
+        lim = THRESHOLD_LIMITS[f.name]
+        rows.append(
+            {
+                "key": key,
+                "name": f.name,
+                "value": team.value(key),
+                "default": f.default,
+                "limits": lim,
+                "step": "1" if lim.integer else "any",
+                "source": team.sources[key],
+            }
+        )
+    env = []
     for key in SHOWN_SETTINGS:
         value = getattr(settings, key)
         if key == "database_url":
             value = _without_password(value)
-        shown.append((key, value, type(settings).model_fields[key].description or ""))
-    context = {"title": "Settings", "settings": shown, "secret_key_set": settings.secret_key is not None}
-    return render(request, "admin_settings.html", context)
+        env.append((key, value, type(settings).model_fields[key].description or ""))
+    base = {
+        "title": "Settings",
+        "team": team,
+        "basis_label": team.storage_basis.label,
+        "basis_choices": [(k, v.label) for k, v in STANDARD_CONDITIONS.items()],
+        "basis_lock": team_settings.standard_conditions_lock(session),
+        "threshold_rows": rows,
+        "settings": env,
+        "secret_key_set": settings.secret_key is not None,
+        "problems": {},
+        "submitted": {},
+        "saved": None,
+    }
+    return {**base, **extra}
 
 
 def _without_password(url: str) -> str:

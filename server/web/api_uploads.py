@@ -18,7 +18,7 @@ from ..services.ingest.service import check_upload, store_upload
 from ..services.ingest.tabular import json_rows_bytes
 from ..services.ingest.xlsx import XlsxLimits
 from .auth import Analyst, Principal, Reader, Uploader
-from .deps import DatabaseDep, SessionDep, SettingsDep
+from .deps import DatabaseDep, SessionDep, SettingsDep, team_settings_for
 from .schemas import ErrorRead
 from .upload_schemas import (
     JobRead,
@@ -104,9 +104,10 @@ def _run(
     filename: str,
     q: UploadQuery,
 ):
+    team = team_settings_for(request)
     release(session)
     options = q.read_options(
-        atmosphere_psia=settings.atmosphere_psia, standard_conditions=settings.standard_conditions
+        atmosphere_psia=team.atmosphere_psia, standard_conditions=team.standard_conditions
     )
     if q.dry_run:
         with db.session() as session:

@@ -12,6 +12,7 @@ from fastapi import Depends, Request
 from sqlalchemy.orm import Session
 
 from ..db.session import Database
+from ..services import team_settings
 from ..settings import Settings
 
 
@@ -32,6 +33,17 @@ def get_session(request: Request) -> Iterator[Session]:
         yield session
 
 
+def team_settings_for(request: Request) -> team_settings.TeamSettings:
+    """The team settings in force for this request (read once per request)."""
+    cached = getattr(request.state, "team_settings", None)
+    if cached is None:
+        with request.app.state.db.session() as session:
+            cached = team_settings.current(session, request.app.state.settings)
+        request.state.team_settings = cached
+    return cached
+
+
 SettingsDep = Annotated[Settings, Depends(get_settings)]
 DatabaseDep = Annotated[Database, Depends(get_database)]
 SessionDep = Annotated[Session, Depends(get_session, scope="function")]
+TeamDep = Annotated[team_settings.TeamSettings, Depends(team_settings_for)]

@@ -129,10 +129,11 @@ class DisplayUnits:
 
 def units_for_request(request) -> DisplayUnits:
     """The display units of this request: the user's choice if they made one, else the
-    installation's default (``Settings.display_units``), at the storage basis."""
-    from ..engine.units import standard_conditions
+    team's default (team settings, falling back to ``Settings.display_units``), at the
+    storage basis of the stored volumes."""
+    from .deps import team_settings_for
 
-    settings = request.app.state.settings
+    team = team_settings_for(request)
     principal = getattr(request.state, "principal", None)
-    system = getattr(principal, "unit_system", None) or settings.display_units
-    return DisplayUnits(system, standard_conditions(settings.standard_conditions))
+    system = getattr(principal, "unit_system", None) or team.display_units
+    return DisplayUnits(system, team.storage_basis)

@@ -19,7 +19,7 @@ from ..services.ingest.templates import template_csv, template_xlsx
 from ..services.ingest.units import FORM_UNIT_CHOICES, quantities
 from .api_uploads import jobs_queued, release, scope
 from .auth import Analyst, Reader, Uploader
-from .deps import DatabaseDep, SessionDep, SettingsDep
+from .deps import DatabaseDep, SessionDep, SettingsDep, TeamDep
 from .pages import render
 from .upload_schemas import DECIMAL_NAMES, DELIMITER_NAMES
 
@@ -27,19 +27,20 @@ router = APIRouter(include_in_schema=False)
 XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
 
 
-def _unit_choices(settings) -> list[dict]:
-    q = quantities(settings.atmosphere_psia, standard_conditions(settings.standard_conditions))
+def _unit_choices(team) -> list[dict]:
+    q = quantities(team.atmosphere_psia, standard_conditions(team.standard_conditions))
     return [{"quantity": k, "label": q[k].name, "units": list(q[k].choices)} for k in FORM_UNIT_CHOICES]
 
 
-def _context(settings, **values) -> dict:
-    """The upload page's full context: every key the template reads, with defaults."""
+def _context(team, **values) -> dict:
+    """The upload page's full context: every key the template reads, with defaults.
+    ``team``: the team settings (atmosphere for gauge pressures, storage basis)."""
     base = {
         "title": "Upload data",
         "kinds": [file_kind(k) for k in UPLOAD_KINDS],
-        "unit_choices": _unit_choices(settings),
-        "atmosphere_psia": settings.atmosphere_psia,
-        "standard_conditions": standard_conditions(settings.standard_conditions).label,
+        "unit_choices": _unit_choices(team),
+        "atmosphere_psia": team.atmosphere_psia,
+        "standard_conditions": standard_conditions(team.standard_conditions).label,
         "kind": "surveys",
         "form": {},
         "report": None,
@@ -53,22 +54,20 @@ def _context(settings, **values) -> dict:
 
 
 @router.get("/upload", response_class=HTMLResponse, name="upload_page")
-def upload_page(request: Request, settings: SettingsDep, user: Uploader, kind: str = "surveys"):
-    return render(
-        request, "upload.html", _context(settings, kind=kind if kind in UPLOAD_KINDS else "surveys")
-    )
+def upload_page(request: Request, team: TeamDep, user: Uploader, kind: str = "surveys"):
+    return render(request, "upload.html", _context(team, kind=kind if kind in UPLOAD_KINDS else "surveys"))
 
 
-def _options(settings, form: dict) -> ReadOptions:
+def _options(team, form: dict) -> ReadOptions:
     units = {q: form.get(f"{q}_unit", "") for q in FORM_UNIT_CHOICES}
     try:
-        atmosphere = float(form.get("atmosphere_psia") or settings.atmosphere_psia)
+        atmosphere = float(form.get("atmosphere_psia") or team.atmosphere_psia)
     except ValueError:
         atmosphere = -1.0  # reported by check_options as out of range
     return ReadOptions(
         units={q: u for q, u in units.items() if u},
         atmosphere_psia=atmosphere,
-        standard_conditions=settings.standard_conditions,
+        standard_conditions=team.standard_conditions,
         delimiter=DELIMITER_NAMES.get(form.get("delimiter", "")),
         decimal=DECIMAL_NAMES.get(form.get("decimal", "")),
         date_order=form.get("date_order") or "iso",
@@ -83,6 +82,7 @@ async def upload_check(
     request_session: SessionDep,
     db: DatabaseDep,
     settings: SettingsDep,
+    team: TeamDep,
     kind: Annotated[str, Form()],
     file: Annotated[UploadFile, File()],
     replace: Annotated[bool, Form()] = False,
@@ -96,7 +96,7 @@ async def upload_check(
     actor = user.actor
 
     def work():
-        options = _options(settings, form)
+        options = _options(team, form)
         with db.session() as session:
             plan = check_upload(
                 session,
@@ -126,7 +126,7 @@ async def upload_check(
     await run_in_threadpool(release, request_session)
     plan, token = await run_in_threadpool(work)
     context = _context(
-        settings,
+        team,
         kind=kind,
         form=form,
         report=plan.report.as_dict(),
@@ -145,6 +145,7 @@ def upload_commit(
     request_session: SessionDep,
     db: DatabaseDep,
     settings: SettingsDep,
+    team: TeamDep,
     token: Annotated[str, Form()],
     accept_warnings: Annotated[bool, Form()] = False,
 ):
@@ -184,7 +185,7 @@ def upload_commit(
             jobs_queued(request)
     outcome = {"status": result.status, "upload_id": result.upload_id, "job_ids": list(result.job_ids)}
     context = _context(
-        settings,
+        team,
         kind=kind,
         report=result.plan.report.as_dict(),
         preview=result.plan.preview(),

@@ -14,6 +14,7 @@ from .portfolio import (
     Well,
 )
 from .results import Estimate, Job, Upload
+from .settings import TeamSetting
 from .staging import StagedUpload
 
 __all__ = [
@@ -32,6 +33,7 @@ __all__ = [
     "PressureSurvey",
     "ProductionMonth",
     "StagedUpload",
+    "TeamSetting",
     "Upload",
     "User",
     "UserAsset",
