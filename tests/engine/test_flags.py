@@ -221,3 +221,20 @@ def test_flags_are_sorted_most_severe_first_and_thresholds_can_be_changed():
     strict = FlagThresholds(max_scatter_frac=0.02, production_gap_days=120.0)
     assert codes(ev, strict) == ["dynamic_below_volumetric"]
     assert math.isclose(FlagThresholds().min_depletion_frac, 0.10)
+
+
+def test_thresholds_outside_their_ranges_raise_a_clear_error():
+    from server.engine.flags import THRESHOLD_LIMITS, FlagThresholdError
+
+    assert {f.name for f in dataclasses.fields(FlagThresholds)} == set(THRESHOLD_LIMITS)
+    for f in dataclasses.fields(FlagThresholds):  # every default lies in its own range
+        lim = THRESHOLD_LIMITS[f.name]
+        assert lim.low <= f.default <= lim.high, f.name
+    with pytest.raises(FlagThresholdError, match="curvature_p_value must lie between 1e-06 and 0.2"):
+        FlagThresholds(curvature_p_value=0.5)
+    with pytest.raises(FlagThresholdError, match="min_surveys must be a whole number"):
+        FlagThresholds(min_surveys=3.5)
+    with pytest.raises(FlagThresholdError, match="finite number"):
+        FlagThresholds(outlier_sigma=float("nan"))
+    with pytest.raises(FlagThresholdError, match="finite number"):
+        FlagThresholds(outlier_sigma=True)

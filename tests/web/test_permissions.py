@@ -90,6 +90,7 @@ MATRIX = [
     (("GET", "/admin/users", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/admin/audit", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
+    (("POST", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/api/portfolio", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}/audit", None), (401, "ok", "ok", "ok", "ok")),
@@ -100,6 +101,8 @@ MATRIX = [
     (("POST", "/api/jobs/recompute-portfolio", None), (401, 403, "ok", "ok", "ok")),
     (("GET", "/api/users", None), (401, 403, 403, 403, "ok")),
     (("GET", "/api/audit", None), (401, 403, 403, 403, "ok")),
+    (("GET", "/api/settings", None), (401, 403, 403, 403, "ok")),
+    (("PUT", "/api/settings", {"display_units": "si"}), (401, 403, 403, 403, "ok")),
     (("GET", "/api/tokens", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/openapi.json", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/api/health", None), ("ok", "ok", "ok", "ok", "ok")),
@@ -144,6 +147,7 @@ def test_token_scopes_limit_what_a_script_may_do(db, token_client):
     admin_token = token_client(["read", "upload", "analyse"], role="admin")
     assert admin_token.get("/api/tokens").status_code == 403
     assert admin_token.get("/api/users").status_code == 403
+    assert admin_token.get("/api/settings").status_code == 403
     assert admin_token.get("/api/audit").status_code == 200
 
 
