@@ -323,7 +323,14 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
     g = float(values[0])
     se_ln_g = float(se[0]) / g
     tq = stats.t.ppf(0.5 + inputs.choices.confidence_level / 2.0, dof)
-    finite = bool(np.isfinite(se_ln_g))
+    giip_low, giip_high = lognormal_interval(g, se_ln_g, tq)
+    if giip_low is None:
+        identifiable = False
+        notes.insert(
+            0,
+            f"GIIP not determined: its interval is unbounded (standard error of ln G {se_ln_g:.3g}; "
+            f"an upper end beyond {MAX_INTERVAL_FACTOR:.0e} times the estimate is reported as unbounded)",
+        )
     return ModelFit(
         name=spec.name,
         title=spec.title,
@@ -333,8 +340,8 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
         residual_pz_psia=problem.grid.obs_pz_psia - fitted,
         fitted_pz_psia=fitted,
         giip_bscf=g,
-        giip_low_bscf=float(g * np.exp(-tq * se_ln_g)) if finite else None,
-        giip_high_bscf=float(g * np.exp(tq * se_ln_g)) if finite else None,
+        giip_low_bscf=giip_low,
+        giip_high_bscf=giip_high,
         params=params,
         param_se={
             **dict(zip(names, (float(v) for v in se), strict=True)),
@@ -345,6 +352,20 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
         converged=converged,
         notes=tuple(notes),
     )
+
+
+#: A GIIP interval reaching beyond this factor of its estimate says nothing: reported unbounded.
+MAX_INTERVAL_FACTOR = 1e6
+
+
+def lognormal_interval(g_bscf: float, se_ln_g: float, t_quantile: float):
+    """(low, high) = G exp(∓ t se(ln G)), or (None, None) when the interval is unbounded
+    (a standard error that is infinite, NaN, or so large that the upper end exceeds
+    ``MAX_INTERVAL_FACTOR`` times G, where exp would also overflow)."""
+    half = t_quantile * se_ln_g
+    if not np.isfinite(half) or half > np.log(MAX_INTERVAL_FACTOR):
+        return None, None
+    return float(g_bscf * np.exp(-half)), float(g_bscf * np.exp(half))
 
 
 def fit_aquifer_model(

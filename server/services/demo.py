@@ -201,7 +201,10 @@ PORTFOLIO: tuple[DemoField, ...] = (
         ),
         20.0,
         (82.0, 100.0, 121.0),
-        second_tank=SecondTank(42.0, 0.06),
+        # Pseudo-pressure connection, the form the two-tank fit uses (engine/tanks_fit.py), so the
+        # fitted model can recover this truth; c = 0.0013 scf cP/(d psi^2) is c' = c/(mu z)
+        # = 0.06 scf/d/psi^2 at mu z = 0.021 cP (about 4000 psia).
+        second_tank=SecondTank(42.0, connection_scf_cp_per_day_psi2=0.0013),
     ),
     DemoField(
         "Hollinsway",

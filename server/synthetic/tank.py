@@ -6,8 +6,14 @@ Material balance in reservoir volume for tank 1 (the produced tank):
 
 with n1 the gas remaining (scf), PVgi = G1*Bgi, ce a constant effective
 compressibility and We the water influx (rcf). The pressure at each step is found by
-root finding. A second tank exchanges gas with the first through a pressure-squared
-connection, q12 = c (p2^2 - p1^2) [scf/d], stepped explicitly with substeps of at most 10 days.
+root finding. A second tank exchanges gas with the first through a connection stepped
+explicitly with substeps of at most 10 days, in one of two forms:
+
+- pressure-squared, q12 = c' (p2^2 - p1^2) [scf/d], c' in scf/d/psi^2;
+- pseudo-pressure, q12 = c (m(p2) - m(p1)) [scf/d], c in scf cP/(d psi^2), with the real-gas
+  pseudo-pressure m(p) = 2 int p/(mu z) dp [psi^2/cP] (Al-Hussainy, Ramey & Crawford 1966),
+  mu from Lee, Gonzalez & Eakin (1966). Tabulated here by the trapezoidal rule on the z table's
+  own grid, independently of the estimators' tables (engine/tanks.py).
 Aquifers: pot (We = ct Wi (pi - p)) or Fetkovich (1971) pseudo-steady state, stepped
 with the average tank pressure of each step.
 """
@@ -19,7 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import brentq
 
-from ..engine.pvt import GasFluid, z_factor
+from ..engine.pvt import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 from ..engine.units import FT3_PER_BBL, OILFIELD_60F, degR_from_degF
 
 
@@ -36,8 +42,20 @@ class FetkovichAquifer:
 
 @dataclass(frozen=True)
 class SecondTank:
+    """A neighbour tank; give exactly one connection: pressure-squared (``c'``) or
+    pseudo-pressure (``c``)."""
+
     giip_bscf: float
-    connection_scf_per_day_psi2: float
+    connection_scf_per_day_psi2: float | None = None  # c' of q = c' (p2^2 - p1^2)
+    connection_scf_cp_per_day_psi2: float | None = None  # c of q = c (m(p2) - m(p1))
+
+    def __post_init__(self):
+        if (self.connection_scf_per_day_psi2 is None) == (self.connection_scf_cp_per_day_psi2 is None):
+            raise ValueError("give exactly one connection: pressure-squared or pseudo-pressure")
+
+    @property
+    def potential(self) -> str:
+        return "pressure_squared" if self.connection_scf_per_day_psi2 is not None else "pseudo_pressure"
 
 
 @dataclass(frozen=True)
@@ -71,6 +89,27 @@ class _ZTable:
         return np.interp(p, self.p, self.z)
 
 
+class _Potential:
+    """The connection's flow potential on the z table's grid: p^2 [psi^2], or the real-gas
+    pseudo-pressure m(p) = 2 int p/(mu z) dp [psi^2/cP] from the table's first pressure
+    (the constant of integration cancels in differences)."""
+
+    def __init__(self, zt: _ZTable, t_degF: float, fluid: GasFluid, second: SecondTank):
+        if second.potential == "pressure_squared":
+            self.coefficient = second.connection_scf_per_day_psi2
+            self.values = zt.p**2
+        else:
+            self.coefficient = second.connection_scf_cp_per_day_psi2
+            rho = gas_density_lb_per_ft3(zt.p, t_degF, zt.z, fluid.gas_gravity)
+            mu = gas_viscosity_lee_gonzalez_eakin(t_degF, fluid.gas_gravity, rho)
+            f = 2.0 * zt.p / (mu * zt.z)
+            self.values = np.concatenate([[0.0], np.cumsum(0.5 * (f[1:] + f[:-1]) * np.diff(zt.p))])
+        self.p = zt.p
+
+    def __call__(self, p):
+        return float(np.interp(p, self.p, self.values))
+
+
 def _bg_rcf_per_scf(p, z, t_degR):
     return OILFIELD_60F.p_sc_psia / OILFIELD_60F.t_sc_degR * z * t_degR / p
 
@@ -97,6 +136,7 @@ def simulate(spec: TankSpec, t_days, rate_mscf_per_day) -> TankHistory:
     n1 = g1
     g2 = spec.second_tank.giip_bscf * 1e9 if spec.second_tank else 0.0
     n2 = g2
+    pot = _Potential(zt, spec.temperature_degF, spec.fluid, spec.second_tank) if spec.second_tank else None
     p1 = p2 = pi
     we_rb = 0.0
     gp = 0.0
@@ -125,7 +165,7 @@ def simulate(spec: TankSpec, t_days, rate_mscf_per_day) -> TankHistory:
         for _ in range(nsub):
             q12 = 0.0
             if spec.second_tank is not None:
-                q12 = spec.second_tank.connection_scf_per_day_psi2 * (p2**2 - p1**2)
+                q12 = pot.coefficient * (pot(p2) - pot(p1))
                 n2 -= q12 * h
                 p2 = _volumetric_pressure(n2 / g2, pz_i, zt, pi)
             withdrawal = rate * 1e3 * h

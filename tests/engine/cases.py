@@ -151,15 +151,18 @@ def surveys_from_history(hist, wells, *, pi_psia, noise_psi, seed, end_days=None
     return np.array(t), np.array(p), list(names), list(comps)
 
 
-def demo_field_inputs(name: str) -> FieldInputs:
+def demo_field_inputs(name: str, *, spec=None, seed: int | None = None) -> FieldInputs:
     """A demo field's inputs built the way services/recompute.py builds them from rows,
-    without a database (the service path is tested separately)."""
+    without a database (the service path is tested separately). ``spec`` and ``seed`` give
+    a variant (as the portfolio benchmark makes them) instead of the demo's own field."""
     from server.engine.volumetrics import volumetric_range
     from server.services.demo import PORTFOLIO, build_field_history
     from server.services.timebase import days_from_date, month_end_exclusive
 
-    i, spec = next((i, s) for i, s in enumerate(PORTFOLIO) if s.name == name)
-    hist = build_field_history(spec, seed=1000 + i)
+    if spec is None:
+        i, spec = next((i, s) for i, s in enumerate(PORTFOLIO) if s.name == name)
+        seed = 1000 + i
+    hist = build_field_history(spec, seed=seed)
     comp = {w.name: w.compartment for w in spec.wells}
     months = sorted({m for _, m, *_ in hist["production"]})
     index = {m: k for k, m in enumerate(months)}

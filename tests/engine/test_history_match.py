@@ -164,3 +164,29 @@ def test_havlena_odeh_line_on_noisy_surveys():
     # of the truth, and its line fits nearly as well as the true one.
     assert 1 / 3.2 < rate / c72.TD_PER_DAY < 3.2
     assert best.rss_weighted <= veh.rss_weighted * 2.0
+
+
+def test_a_huge_giip_error_gives_an_unbounded_interval_not_an_overflow():
+    from server.engine.history_match import MAX_INTERVAL_FACTOR, lognormal_interval
+
+    low, high = lognormal_interval(50.0, 0.1, 2.0)
+    assert (low, high) == pytest.approx((50.0 * np.exp(-0.2), 50.0 * np.exp(0.2)))
+    # finite but huge (exp would overflow: warnings are errors here), infinite, NaN
+    for se in (1e4, np.log(MAX_INTERVAL_FACTOR), np.inf, np.nan):
+        assert lognormal_interval(50.0, se, 2.0) == (None, None)
+
+
+def test_the_benchmark_variant_that_overflowed_reports_the_pot_model_unbounded():
+    # Portfolio benchmark variant 54 ("Gorsewick 05"): a pot aquifer fitted to a two-compartment
+    # field has a standard error of G of about 3e4 Bscf; exp(t se/G) overflowed before.
+    from benchmarks.bench_portfolio import variants
+    from server.engine.analysis import analyse_field
+    from tests.engine.cases import demo_field_inputs
+
+    v = variants(200)[54]
+    result = analyse_field(demo_field_inputs(v.name, spec=v, seed=1054))
+    pot = next(m for m in result.diagnosis.models if m.name == "aquifer_pot")
+    assert pot.giip_low_bscf is None and pot.giip_high_bscf is None and not pot.identifiable
+    assert pot.notes[0].startswith("GIIP not determined: its interval is unbounded")
+    row = next(r for r in result.diagnosis.comparison.rows if r.name == "aquifer_pot")
+    assert row.giip_low_bscf is None and not row.identifiable

@@ -111,6 +111,41 @@ def test_simulator_agrees_with_the_independent_forward_model(dt_days, tol_psia):
         assert np.max(np.abs(PZI * u[1:, k] - pz_ref)) < tol_psia
 
 
+def test_pseudo_pressure_simulator_agrees_with_the_independent_forward_model():
+    # server/synthetic/tank.py tabulates m(p) itself (trapezoids on its z grid) and steps daily;
+    # engine/tanks.py uses its own table and monthly exponential steps. Same physics, written
+    # twice: they must agree far inside survey noise (0.3 psia, as the pressure-squared case).
+    gamma = 1.5 * 0.021  # scf cP/(d psi^2): about the pressure-squared 1.5 at mu z = 0.021 cP
+    spec = TankSpec(
+        60.0, 5000.0, 200.0, GAS_065, second_tank=SecondTank(40.0, connection_scf_cp_per_day_psi2=gamma)
+    )
+    days = np.arange(1.0, 2923.0)
+    ref = simulate(spec, days, np.full(days.size, 20000.0))
+    pot = potential_table(_z, 8000.0, method="pseudo_pressure", viscosity_cp_of_p=_lge)
+    n = int(2922 // MONTH_DAYS)
+    w = [[20e6 * MONTH_DAYS, 0.0]] * n
+    u = np.array(simulate_star_tanks(np.array([60e9, 40e9]), [gamma], PZI, pot, [MONTH_DAYS] * n, w))
+    t = np.arange(1, n + 1) * MONTH_DAYS
+    for k, p_ref in ((0, ref.p1_psia), (1, ref.p2_psia)):
+        pz_ref = np.interp(t, days, p_ref / _z(p_ref))
+        assert np.max(np.abs(PZI * u[1:, k] - pz_ref)) < 0.3
+    # and the two forms differ: the same c' = c/(mu z) gives a visibly different history
+    spec_p2 = TankSpec(60.0, 5000.0, 200.0, GAS_065, second_tank=SecondTank(40.0, 1.5))
+    p2 = simulate(spec_p2, days, np.full(days.size, 20000.0))
+    assert (spec_p2.second_tank.potential, spec.second_tank.potential) == (
+        "pressure_squared",
+        "pseudo_pressure",
+    )
+    assert np.max(np.abs(p2.p2_psia - ref.p2_psia)) > 5.0
+
+
+def test_second_tank_needs_exactly_one_connection():
+    with pytest.raises(ValueError, match="exactly one connection"):
+        SecondTank(40.0)
+    with pytest.raises(ValueError, match="exactly one connection"):
+        SecondTank(40.0, 1.5, connection_scf_cp_per_day_psi2=0.03)
+
+
 def test_check_value_27_inputs_and_single_tank_apparent_giip():
     # Check value 27, intermediate steps: the §7.5 pressures give the printed p1/z1
     # (2 decimals -> 0.01 psia), and single-tank lines through quarterly surveys give the
@@ -160,9 +195,12 @@ def test_check_value_27_noisy_two_tank_total_and_interval(potential):
     assert np.sqrt(fit.rss_psia2 / fit.n_obs) == pytest.approx(15.0, rel=0.35)
 
 
-def _labelled_history(gamma=0.06, noise=10.0, seed=7):
+def _labelled_history(gamma=0.06, noise=10.0, seed=7, potential="pressure_squared"):
     """Two labelled compartments; wells W1 (West, producing) and E1 (East, observation)."""
-    spec = TankSpec(58.0, 5000.0, 205.0, GAS_065, second_tank=SecondTank(42.0, gamma))
+    key = (
+        "connection_scf_per_day_psi2" if potential == "pressure_squared" else "connection_scf_cp_per_day_psi2"
+    )
+    spec = TankSpec(58.0, 5000.0, 205.0, GAS_065, second_tank=SecondTank(42.0, **{key: gamma}))
     ends = monthly_ends(10)
     rate = np.full(ends.size, 18000.0)
     hist = simulate(spec, ends, rate)
@@ -207,6 +245,21 @@ def test_labelled_compartments_are_fitted_with_their_own_surveys():
     assert fit.giip_low_bscf < 100.0 < fit.giip_high_bscf
     # no structured misfit: the RMS stays at the noise level (10 psi on p, about 10.5 psia on p/z)
     assert np.sqrt(fit.rss_psia2 / fit.n_obs) < 12.0
+
+
+@pytest.mark.parametrize("seed", [7, 8, 9])
+def test_pseudo_pressure_compartments_are_recovered_by_the_default_fit(seed):
+    # Forward model: server/synthetic/tank.py with the pseudo-pressure connection the fit uses
+    # (the demo's Gorsewick layout): the truth lies within 3 standard errors.
+    inputs = _labelled_history(gamma=0.0013, seed=seed, potential="pseudo_pressure")
+    fit = fit_two_tank(inputs, prepare(inputs))
+    assert fit.identifiable and fit.converged
+    p = fit.params
+    for name, truth in (("giip_tank1_bscf", 58.0), ("giip_tank2_bscf", 42.0)):
+        assert abs(p[name] - truth) < 3 * fit.param_se[name]
+    gamma = next(k for k in p if k.startswith("transmissibility_tank2"))
+    assert abs(p[gamma] - 0.0013) < 3 * fit.param_se[gamma]
+    assert fit.giip_low_bscf < 100.0 < fit.giip_high_bscf
 
 
 def test_volumetric_data_leave_the_neighbour_unidentified():
