@@ -94,6 +94,10 @@ class ModelComparison:
     left_out: tuple[tuple[str, str], ...]  # (model, why it could not be compared)
     comparable_delta: float = COMPARABLE_DELTA
     little_support_delta: float = LITTLE_SUPPORT_DELTA
+    # The envelope of the comparable models' GIIP intervals [Bscf]: the range to report when
+    # the data do not single out one model (None when any of them is unbounded).
+    comparable_giip_low_bscf: float | None = None
+    comparable_giip_high_bscf: float | None = None
 
     def row(self, name: str) -> ModelAssessment | None:
         return next((r for r in self.rows if r.name == name), None)
@@ -219,16 +223,27 @@ def compare_models(
     )
     comparable = tuple(r.name for r in rows if r.delta_aicc < comparable_delta)
     preferred = rows[0].name if rows else None
+    low, high = comparable_giip_envelope([r for r in rows if r.name in comparable])
     return ModelComparison(
         tuple(rows),
         f_tests,
         preferred,
         comparable,
-        _statement(rows, comparable_delta),
+        _statement(rows, comparable_delta, (low, high)),
         tuple(left_out),
         comparable_delta,
         little_support_delta,
+        low,
+        high,
     )
+
+
+def comparable_giip_envelope(rows) -> tuple[float | None, float | None]:
+    """(lowest low, highest high) of the rows' GIIP intervals [Bscf]; (None, None) when any
+    interval is unbounded or missing (an envelope with an open end is not a range)."""
+    if not rows or any(r.giip_low_bscf is None or r.giip_high_bscf is None for r in rows):
+        return None, None
+    return min(r.giip_low_bscf for r in rows), max(r.giip_high_bscf for r in rows)
 
 
 def _giip_text(r: ModelAssessment) -> str:
@@ -239,18 +254,24 @@ def _giip_text(r: ModelAssessment) -> str:
     return f"GIIP {r.giip_bscf:.1f} Bscf (interval not bounded)"
 
 
-def _statement(rows, comparable_delta: float) -> str:
+def _statement(rows, comparable_delta: float, envelope=(None, None)) -> str:
     if not rows:
         return "no model could be compared"
     best = rows[0]
     others = [r for r in rows[1:] if r.delta_aicc < comparable_delta]
     text = f"Best fit: {best.title}, {_giip_text(best)}"
     if others:
+        low, high = envelope
+        spread = (
+            f"GIIP {low:.1f}-{high:.1f} Bscf across these models (the span of their intervals)"
+            if low is not None
+            else "no bounded GIIP range across these models (at least one interval is unbounded)"
+        )
         text += (
             f". Fitting comparably (ΔAICc < {comparable_delta:g}): "
             + "; ".join(f"{r.title}, {_giip_text(r)}, ΔAICc {r.delta_aicc:.1f}" for r in others)
-            + ". The data do not single out one model; treat the spread of these estimates as"
-            " part of the uncertainty"
+            + f". The data do not single out one model: {spread}; treat the spread of these"
+            " estimates as part of the uncertainty"
         )
     else:
         text += f"; the next model is {rows[1].delta_aicc:.1f} AICc units behind" if len(rows) > 1 else ""

@@ -317,9 +317,13 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
     if len(reds) > 1:
         if red is not None:
             params["red"] = float(red)
-        chosen = "infinite aquifer" if red is None else f"outer radius ratio r_eD = {red:g}"
         options = ", ".join("∞" if r is None else f"{r:g}" for r in reds)
-        notes.append(f"{chosen} chosen from {{{options}}} (counted as a parameter)")
+        if red is None:
+            notes.append(f"infinite aquifer chosen from r_eD in {{{options}}}")
+        else:
+            notes.append(
+                f"outer radius ratio r_eD = {red:g} chosen from {{{options}}} (counted as a parameter)"
+            )
     g = float(values[0])
     se_ln_g = float(se[0]) / g
     tq = stats.t.ppf(0.5 + inputs.choices.confidence_level / 2.0, dof)
@@ -334,7 +338,9 @@ def _model_fit(inputs, spec, problem: _Problem, result, red, reds) -> ModelFit:
     return ModelFit(
         name=spec.name,
         title=spec.title,
-        n_params=k + (1 if len(reds) > 1 else 0),
+        # The infinite radial aquifer is the vEH model's base form, with the same four
+        # parameters as Fetkovich's; a finite outer radius is one more, chosen by the data.
+        n_params=k + (1 if red is not None else 0),
         n_obs=n,
         rss_psia2=rss,
         residual_pz_psia=problem.grid.obs_pz_psia - fitted,

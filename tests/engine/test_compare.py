@@ -1,5 +1,6 @@
 """Model comparison: information criteria, F-tests, residual structure and the ranked table."""
 
+import dataclasses
 import math
 
 import numpy as np
@@ -80,6 +81,9 @@ def test_ranked_table_weights_and_comparable_models_are_reported_together():
     assert (
         "do not single out one model" in cmp.statement and "80.0" in cmp.statement and "90.0" in cmp.statement
     )
+    # the range to report is the span of the comparable models' intervals (75-95 here)
+    assert (cmp.comparable_giip_low_bscf, cmp.comparable_giip_high_bscf) == (75.0, 95.0)
+    assert "GIIP 75.0-95.0 Bscf across these models" in cmp.statement
     # F-tests only for the nested pairs present
     assert {(f.simpler, f.larger) for f in cmp.f_tests} == {
         ("single_tank", "tank_ce"),
@@ -116,3 +120,13 @@ def test_runs_test_sees_the_concave_up_bend_of_a_compartmented_field():
     row = compare_models([single], gp).row("single_tank")
     assert row.runs.n_runs <= 4 and row.runs.p_value < 1e-4
     assert row.lag1_autocorrelation > 0.5
+
+
+def test_an_unbounded_comparable_interval_leaves_no_range():
+    n = 30
+    bounded = _fit("single_tank", 3000.0, n=n, giip=90.0)
+    open_ended = dataclasses.replace(_fit("tank_ce", 2950.0, n=n, k=3, giip=80.0), giip_high_bscf=None)
+    cmp = compare_models([bounded, open_ended], np.arange(n, dtype=float))
+    assert len(cmp.comparable) == 2
+    assert (cmp.comparable_giip_low_bscf, cmp.comparable_giip_high_bscf) == (None, None)
+    assert "no bounded GIIP range across these models" in cmp.statement
