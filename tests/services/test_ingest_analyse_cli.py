@@ -75,3 +75,48 @@ def test_analyse_refuses_with_too_few_surveys(tmp_path):
     one.write_text("field,well,survey_date,pressure_psia\nAshcombe,A-1,2011-02-01,4000\n")
     code, out = run(*files(surveys=str(one)), "--field", "Ashcombe")
     assert code == 3 and out["status"] == "refused" and out["analysis"]["message"]
+
+
+def test_analyse_prints_the_diagnosis_models_comparison_and_flags(tmp_path):
+    # The demo's Gorsewick (two compartments across a leaky fault, the late well GRW-3 near
+    # initial pressure), written as upload files: the JSON carries every model, the ranked
+    # comparison with its statement, the Cole plot and the flags with their reasons.
+    from server.services.demo import PORTFOLIO, build_field_history
+
+    i, spec = next((i, s) for i, s in enumerate(PORTFOLIO) if s.name == "Gorsewick")
+    hist = build_field_history(spec, seed=1000 + i)
+    (tmp_path / "fields.csv").write_text(
+        "field,asset,datum_depth_ft,reservoir_temperature_degF,initial_pressure_psia,abandonment_pressure_psia\n"
+        f"Gorsewick,South,{spec.datum_ft},{spec.t_degF},{spec.pi_psia},{spec.abandonment_psia}\n"
+    )
+    (tmp_path / "fluids.csv").write_text(f"field,gas_gravity\nGorsewick,{spec.gravity}\n")
+    (tmp_path / "wells.csv").write_text(
+        "field,well,compartment,gauge_reference_depth_ft\n"
+        + "".join(f"Gorsewick,{w.name},{w.compartment or ''},{spec.datum_ft}\n" for w in spec.wells)
+    )
+    (tmp_path / "surveys.csv").write_text(
+        "field,well,survey_date,pressure_psia,gauge_depth_ft,kind,quality\n"
+        + "".join(f"Gorsewick,{w},{d.isoformat()},{p},{g},{k},{q}\n" for w, d, p, g, k, q in hist["surveys"])
+    )
+    (tmp_path / "production.csv").write_text(
+        "field,well,month,gas_mscf,condensate_stb,water_stb\n"
+        + "".join(
+            f"Gorsewick,{w},{m:%Y-%m},{g:.1f},{c:.1f},{wat:.1f}\n" for w, m, g, c, wat in hist["production"]
+        )
+    )
+    paths = {n: str(tmp_path / f"{n}.csv") for n in ("fields", "fluids", "surveys", "production", "wells")}
+    code, out = run(*files(**paths))
+    assert code == 0, out
+    a = out["analysis"]
+    d = a["diagnosis"]
+    assert {m["name"] for m in d["models"]} == {
+        "single_tank", "tank_ce", "two_tank", "aquifer_pot", "aquifer_fetkovich", "aquifer_veh_radial",
+    }  # fmt: skip
+    cmp = d["comparison"]
+    assert cmp["preferred"] == "two_tank" and cmp["rows"][0]["name"] == "two_tank"
+    assert cmp["statement"].startswith("Best fit: Two tanks")
+    assert {"aicc", "delta_aicc", "support", "giip_low_bscf", "runs"} <= set(cmp["rows"][0])
+    assert d["cole_plots"]
+    codes = {f["code"]: f for f in a["flags"]}
+    assert set(codes) == {"compartment_signature"} and "GRW-3" in codes["compartment_signature"]["reason"]
+    assert codes["compartment_signature"]["numbers"]
