@@ -25,6 +25,7 @@ and for the compartment diagnostics; they are *not* extra points to fit.
 from __future__ import annotations
 
 import dataclasses
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -214,8 +215,13 @@ def _check_inputs(inputs: FieldInputs) -> None:
         bad = np.flatnonzero(~(v >= 0))
         if bad.size:
             raise EngineError(f"{name}: period {bad[0] + 1} has {float(v[bad[0]])}, not a volume >= 0")
-    if not 0 < inputs.abandonment_pressure_psia < inputs.initial_pressure_psia:
-        raise EngineError("abandonment pressure must be positive and below the initial pressure")
+    pi, pa = inputs.initial_pressure_psia, inputs.abandonment_pressure_psia
+    if not (math.isfinite(pi) and pi > 0):
+        raise EngineError(f"initial pressure must be a positive absolute pressure [psia], got {pi}")
+    if not 0 < pa < pi:
+        raise EngineError(
+            f"abandonment pressure must be positive and below the initial pressure ({pi:g} psia), got {pa}"
+        )
 
 
 def _wet_gas(inputs: FieldInputs, sep, fluid: GasFluid, notes: list[str]):

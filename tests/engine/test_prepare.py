@@ -339,6 +339,15 @@ def test_bad_inputs_name_the_row(change, message):
         prepare(_simple(**change))
 
 
+def test_bad_initial_or_abandonment_pressure_is_named():
+    with pytest.raises(EngineError, match="initial pressure must be a positive absolute pressure.*nan"):
+        prepare(dataclasses.replace(_simple(), initial_pressure_psia=float("nan")))
+    with pytest.raises(
+        EngineError, match=r"abandonment pressure .* below the initial pressure \(5000 psia\), got 6000"
+    ):
+        prepare(dataclasses.replace(_simple(), abandonment_pressure_psia=6000.0))
+
+
 def test_condensate_without_gas_is_refused():
     with pytest.raises(EngineError, match="condensate reported with no separator gas"):
         prepare(
