@@ -305,3 +305,22 @@ def authenticate(
     user.failed_logins = 0
     user.last_login_at = now
     return LoginResult(user)
+
+
+UNIT_SYSTEM_CHOICES = ("oilfield", "si")
+
+
+def set_unit_system(session: Session, *, user_id: int, unit_system: str | None) -> None:
+    """Store a user's own display units (None: follow the team's default).
+
+    A personal preference, so it is not written to the audit trail."""
+    if unit_system is not None and unit_system not in UNIT_SYSTEM_CHOICES:
+        raise ValueError(
+            f"unit_system: {unit_system!r} is not a unit system; choose one of "
+            f"{', '.join(UNIT_SYSTEM_CHOICES)} or leave it empty for the team's default"
+        )
+    user = session.get(User, user_id)
+    if user is None:
+        raise LookupError(f"no user with id {user_id}")
+    user.unit_system = unit_system
+    session.flush()

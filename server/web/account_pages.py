@@ -245,3 +245,19 @@ def end_other_sessions(request: Request, session: SessionDep, user: AccountHolde
         if not (user.via == "session" and s.id == user.credential_id):
             credentials.revoke_session(s, clock)
     return RedirectResponse("/account#sessions", status_code=303)
+
+
+@router.post("/account/units", name="account_units")
+def choose_units(
+    request: Request,
+    session: SessionDep,
+    user: AccountHolder,
+    unit_system: Annotated[str, Form(max_length=20)] = "",
+    next: Annotated[str, Form(max_length=2000)] = "/",
+):
+    """The header's unit switch: store the choice and go back to the page it came from."""
+    try:
+        accounts.set_unit_system(session, user_id=user.user_id, unit_system=unit_system or None)
+    except ValueError as exc:
+        raise HTTPException(status_code=422, detail=str(exc)) from None
+    return RedirectResponse(safe_next(next), status_code=303)

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import dataclasses
-from typing import Annotated, Any
+from typing import Annotated, Any, Literal
 
 from fastapi import APIRouter, HTTPException, Path, Query, Request
 from pydantic import BaseModel, Field
@@ -25,6 +25,15 @@ class MeRead(BaseModel):
     all_assets: bool
     asset_ids: list[int]
     via: str
+    unit_system: Literal["oilfield", "si"] | None = Field(
+        description="the user's own display units; null: the team's default"
+    )
+
+
+class UnitsUpdate(BaseModel):
+    unit_system: Literal["oilfield", "si"] | None = Field(
+        description="oilfield or si; null to follow the team's default"
+    )
 
 
 class TokenRead(BaseModel):
@@ -84,7 +93,15 @@ def me(user: Reader):
         all_assets=user.asset_ids is None,
         asset_ids=sorted(user.asset_ids or ()),
         via=user.via,
+        unit_system=user.unit_system,
     )
+
+
+@router.put("/me/units", response_model=MeRead)
+def choose_units(body: UnitsUpdate, request: Request, session: SessionDep, user: AccountHolder):
+    """Choose one's own display units (pages, charts and exports); null follows the team."""
+    accounts.set_unit_system(session, user_id=user.user_id, unit_system=body.unit_system)
+    return me(dataclasses.replace(user, unit_system=body.unit_system))
 
 
 @router.get("/tokens", response_model=list[TokenRead])

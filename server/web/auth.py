@@ -69,6 +69,7 @@ class Principal:
     credential_id: int
     csrf_token: str  # the session's form token; empty for API tokens
     must_change_password: bool
+    unit_system: str | None = None  # the user's own display units; None: the team's default
 
     def can(self, permission: Permission | str) -> bool:
         return permission in self.permissions
@@ -98,6 +99,7 @@ def _principal(session: Session, user: User, via, credential_id, csrf, permissio
         credential_id,
         csrf,
         user.must_change_password,
+        user.unit_system,
     )
 
 

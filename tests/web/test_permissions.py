@@ -87,6 +87,8 @@ MATRIX = [
     (("GET", "/fields/{fid}", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/upload", None), ("login", 403, "ok", "ok", "ok")),
     (("GET", "/account", None), ("login", "ok", "ok", "ok", "ok")),
+    (("POST", "/account/units", None), ("login", "redirect", "redirect", "redirect", "redirect")),
+    (("PUT", "/api/me/units", {"unit_system": None}), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/admin/users", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/admin/audit", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/admin/settings", None), ("login", 403, 403, 403, "ok")),

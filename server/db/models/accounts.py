@@ -19,6 +19,7 @@ class User(Base):
     __tablename__ = "user_account"
     __table_args__ = (
         CheckConstraint("role IN ('viewer', 'engineer', 'approver', 'admin')", name="role_known"),
+        CheckConstraint("unit_system IS NULL OR unit_system IN ('oilfield', 'si')", name="unit_system_known"),
     )
     id: Mapped[int] = mapped_column(primary_key=True)
     username: Mapped[str] = mapped_column(String(80), unique=True)
@@ -32,6 +33,7 @@ class User(Base):
     all_assets: Mapped[bool] = mapped_column(Boolean, default=True, server_default=true())
     must_change_password: Mapped[bool] = mapped_column(Boolean, default=False, server_default=false())
     last_login_at: Mapped[dt.datetime | None] = mapped_column()
+    unit_system: Mapped[str | None] = mapped_column(String(10))  # None: the team's default
 
 
 class UserAsset(Base):
