@@ -18,7 +18,18 @@ from .engine import ENGINE_VERSION
 from .services.team_settings import pin_storage_basis
 from .services.worker import Worker
 from .settings import PROJECT_ROOT, Settings
-from .web import account_pages, admin_pages, api, api_accounts, api_settings, api_uploads, pages, uploads
+from .web import (
+    account_pages,
+    admin_pages,
+    api,
+    api_accounts,
+    api_data,
+    api_settings,
+    api_uploads,
+    data_pages,
+    pages,
+    uploads,
+)
 from .web.auth import Public, Reader, document_auth_errors
 from .web.display import units_for_request
 from .web.errors import install_error_handlers
@@ -121,5 +132,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(admin_pages.router)
     app.include_router(pages.router)
     app.include_router(uploads.router)
+    app.include_router(data_pages.router)
+    app.include_router(api_data.router)
     document_auth_errors(app)
     return app

@@ -20,7 +20,7 @@ def health():
     return {"status": "ok", "engine_version": ENGINE_VERSION}
 
 
-@router.get("/portfolio", response_model=list[PortfolioRowRead], tags=["portfolio"])
+@router.get("/portfolio", response_model=list[PortfolioRowRead], tags=["portfolio"], name="api_portfolio")
 def portfolio(session: SessionDep, user: Reader):
     return [_row(r) for r in portfolio_rows(session, user.asset_ids)]
 

@@ -32,6 +32,7 @@ from ..engine.units import (
     standard_volume_ratio,
 )
 
+FT3_PER_ACRE_FT = 43560.0  # 1 acre = 43,560 ft² (exact) × 1 ft
 UnitSystemName = Literal["oilfield", "si"]
 UNIT_SYSTEMS: tuple[UnitSystemName, ...] = ("oilfield", "si")
 DASH = "–"
@@ -59,6 +60,8 @@ def _table(system: UnitSystemName, basis: StandardConditions) -> dict[str, _Unit
             "liquid_stb": _Unit("stb", 0),
             "compressibility_per_psi": _Unit("1/psi", 8),
             "pz_slope_psia_per_bscf": _Unit("psia/Bscf", 2),
+            "bg": _Unit(f"rcf/scf ({b})", 6),
+            "rock_volume": _Unit("acre-ft", 0, 1.0 / FT3_PER_ACRE_FT),
         }
     # Volume at ISO conditions per volume at the storage basis (equal moles), times ft3 -> m3.
     m3_per_scf = standard_volume_ratio(basis, ISO_15C) * M3_PER_FT3
@@ -74,6 +77,10 @@ def _table(system: UnitSystemName, basis: StandardConditions) -> dict[str, _Unit
         "liquid_stb": _Unit("m³", 1, M3_PER_BBL),
         "compressibility_per_psi": _Unit("1/kPa", 9, 1.0 / KPA_PER_PSI),
         "pz_slope_psia_per_bscf": _Unit("kPa per 10⁶ m³", 3, KPA_PER_PSI / (1e9 * m3_per_scf / 1e6)),
+        # Bg is reservoir volume per standard volume: rm³ per m³ at ISO conditions (ft³ per ft³
+        # cancels, so only the standard volume's basis changes: divide by m³(ISO) per m³(basis)).
+        "bg": _Unit("rm³/m³ (15 °C, 101.325 kPa)", 6, 1.0 / standard_volume_ratio(basis, ISO_15C)),
+        "rock_volume": _Unit("10⁶ m³", 3, M3_PER_FT3 / 1e6),
     }
 
 

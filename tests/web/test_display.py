@@ -36,3 +36,24 @@ def test_unknown_names_raise():
         DisplayUnits("imperial")
     with pytest.raises(ValueError):
         DisplayUnits().label("speed")
+
+
+def test_bg_in_si_is_reservoir_m3_per_iso_m3_check_values_1_and_3():
+    # Bg = (p_sc/T_sc) z T / p. Check value 1 (docs/domain-reference.md §8): 0.0282795 ft³/scf per
+    # z T[°R]/p[psia] at 60 °F/14.696 psia; check value 3: 0.351640 rm³/sm³ per z T[K]/p[kPa] at
+    # 15 °C/101.325 kPa. The same gas (z 0.89735 at 2000 psia, 200 °F: check value 13) both ways.
+    z, t_degR, t_K, p_psia = 0.89735, 659.67, 659.67 / 1.8, 2000.0
+    bg_oilfield = 0.0282795 * z * t_degR / p_psia
+    bg_iso = 0.351640 * z * t_K / (p_psia * 6.894757293168361)
+    assert DisplayUnits("oilfield", OILFIELD_60F).value("bg", bg_oilfield) == bg_oilfield
+    assert DisplayUnits("si", OILFIELD_60F).value("bg", bg_oilfield) == pytest.approx(bg_iso, rel=2e-6)
+    assert DisplayUnits("si", ISO_15C).value("bg", bg_iso) == pytest.approx(bg_iso, rel=1e-12)  # same basis
+    assert "15 °C" in DisplayUnits("si").label("bg") and "60 °F" in DisplayUnits("oilfield").label("bg")
+    assert DisplayUnits("oilfield", OILFIELD_60F).values("bg", [bg_oilfield])[0] == bg_oilfield
+
+
+def test_rock_volume_acre_feet_and_million_m3():
+    # 1 acre-ft = 43,560 ft³ = 1,233.48183754752 m³ (1 ft = 0.3048 m exactly; NIST SP 811)
+    assert DisplayUnits("oilfield").value("rock_volume", 43560.0 * 2500) == pytest.approx(2500.0)
+    si = DisplayUnits("si").value("rock_volume", 43560.0 * 2500)
+    assert si == pytest.approx(2500 * 1233.48183754752e-6)

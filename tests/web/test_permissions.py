@@ -80,6 +80,7 @@ def test_roles_are_cumulative():
 
 
 ROWS = {"rows": [{"field": "Matrix", "well": "W-1", "survey_date": "2012-01-15", "pressure_psia": 4000}]}
+DATA_PAGES = ("wells", "surveys", "production", "fluid", "volumetric")  # web/data_pages.py, api_data.py
 # (method, path, body) -> the outcome for anonymous, viewer, engineer, approver, admin.
 # "ok": 2xx, "login": a page redirects to the login page, 401: the API refuses, 403: not allowed.
 MATRIX = [
@@ -96,6 +97,8 @@ MATRIX = [
     (("GET", "/api/portfolio", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}/audit", None), (401, "ok", "ok", "ok", "ok")),
+    *((("GET", f"/fields/{{fid}}/{d}", None), ("login", "ok", "ok", "ok", "ok")) for d in DATA_PAGES),
+    *((("GET", f"/api/fields/{{fid}}/{d}", None), (401, "ok", "ok", "ok", "ok")) for d in DATA_PAGES),
     (("POST", "/api/uploads/surveys/rows?dry_run=true", ROWS), (401, 403, "ok", "ok", "ok")),
     (("GET", "/upload/templates/surveys.csv", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/jobs", None), ("login", "ok", "ok", "ok", "ok")),
