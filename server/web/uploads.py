@@ -20,7 +20,9 @@ from ..services.ingest.units import FORM_UNIT_CHOICES, quantities
 from .api_uploads import jobs_queued, release, scope
 from .auth import Analyst, Reader, Uploader
 from .deps import DatabaseDep, SessionDep, SettingsDep, TeamDep
+from .display import units_for_request
 from .pages import render
+from .upload_display import display_preview
 from .upload_schemas import DECIMAL_NAMES, DELIMITER_NAMES
 
 router = APIRouter(include_in_schema=False)
@@ -130,7 +132,7 @@ async def upload_check(
         kind=kind,
         form=form,
         report=plan.report.as_dict(),
-        preview=plan.preview(),
+        preview=display_preview(plan.preview(), units_for_request(request)),
         token=token,
         filename=filename,
         replace=replace,
@@ -188,7 +190,7 @@ def upload_commit(
         team,
         kind=kind,
         report=result.plan.report.as_dict(),
-        preview=result.plan.preview(),
+        preview=display_preview(result.plan.preview(), units_for_request(request)),
         token="" if result.status in ("committed", "unchanged") else token,
         filename=filename,
         replace=replace,
