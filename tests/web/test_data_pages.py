@@ -327,3 +327,24 @@ def test_the_twins_are_documented_in_openapi(client):
     assert (
         params["per_page"]["schema"]["maximum"] == 200 and "YYYY-MM-DD" in params["date_from"]["description"]
     )
+
+
+def test_fluid_z_is_for_the_same_gas_as_the_estimate_with_condensate(db, client):
+    from server.db.models import ProductionMonth
+
+    with db.session() as s:
+        f = make_field(s, name="Wet")
+        add_volumetric_history(s, f)
+        f.fluid.condensate_api = 50.0
+        for pm in s.execute(select(ProductionMonth)).scalars():
+            pm.condensate_stb = pm.gas_mscf * 0.04  # 40 stb/MMscf
+        jobs.enqueue_field_recompute(s, [f.id], reason="test")
+        fid = f.id
+    jobs.drain(db)
+    api = client.get(f"/api/fields/{fid}/fluid").json()
+    estimate_fluid = client.get(f"/api/fields/{fid}").json()["detail"]["prepared"]["fluid"]
+    assert api["z_gas_gravity"] == pytest.approx(estimate_fluid["gas_gravity"])
+    assert api["z_gas_gravity"] > 0.66  # heavier than the separator gas (0.65)
+    page = client.get(f"/fields/{fid}/fluid").text
+    assert f"well-stream gravity {api['z_gas_gravity']:.4f}" in page
+    assert 'id="condensate-api">50.0 °API' in page
