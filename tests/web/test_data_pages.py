@@ -348,3 +348,14 @@ def test_fluid_z_is_for_the_same_gas_as_the_estimate_with_condensate(db, client)
     page = client.get(f"/fields/{fid}/fluid").text
     assert f"well-stream gravity {api['z_gas_gravity']:.4f}" in page
     assert 'id="condensate-api">50.0 °API' in page
+
+
+def test_a_users_own_unit_choice_applies_to_the_data_pages(db, client, viewer_client, seeded):
+    r = client.post("/account/units", data={"unit_system": "si", "next": "/"}, follow_redirects=False)
+    assert r.status_code == 303
+    url = f"/fields/{seeded}/surveys?well=W-2"
+    assert _cells(client.get(url).text, "surveys-table")[0][3] == f"{3900.5 * KPA_PER_PSI:,.0f}"
+    assert _cells(viewer_client.get(url).text, "surveys-table")[0][3] == "3,900.5"  # others keep the default
+    # the JSON twin stays in stored units whatever the reader chose
+    twin = client.get(f"/api/fields/{seeded}/surveys?well=W-2").json()
+    assert twin["surveys"][0]["pressure_psia"] == 3900.5
