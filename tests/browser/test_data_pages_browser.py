@@ -60,3 +60,25 @@ def test_field_data_pages(page, live_server, console_errors, screenshot_dir):
         page.locator("#crumb-field").click()
     assert page.locator("h1").inner_text() == "Amberlode"
     assert console_errors == []
+
+
+def test_unit_switch_on_a_searched_data_page(anon_page, live_server, console_errors):
+    from tests.browser.conftest import BROWSER_USERS, log_in
+
+    page = anon_page
+    log_in(page, live_server, BROWSER_USERS["viewer"])  # not the engineer other tests use
+    page.goto(live_server + "/fields/1/surveys?well=AMB-3&per_page=25")
+    assert "psia" in page.locator("#surveys-table thead").inner_text()
+    page.get_by_label("Units").select_option("si")
+    with page.expect_navigation():
+        page.get_by_role("button", name="Show").click()
+    try:
+        assert page.url.endswith("/fields/1/surveys?well=AMB-3&per_page=25")  # the search is kept
+        head = page.locator("#surveys-table thead").inner_text()
+        assert "kPa" in head and "psia" not in head and "\nm\t" in head
+        assert page.locator("#showing-top").inner_text() == "Showing 1–21 of 21 surveys, page 1 of 1"
+    finally:
+        page.get_by_label("Units").select_option("")
+        with page.expect_navigation():
+            page.get_by_role("button", name="Show").click()
+    assert console_errors == []
