@@ -154,7 +154,7 @@ def fluid_view(session: Session, field_id: int) -> FluidView | None:
         y_h2s_frac=fl.y_h2s_frac,
         y_n2_frac=fl.y_n2_frac,
         condensate_api=fl.condensate_api,
-        z_gas_gravity=fluid.gas_gravity,
+        z_gas_gravity=float(fluid.gas_gravity),
         z_method=ch.z_method,
         z_method_label=Z_METHOD_LABELS[ch.z_method],
         pseudo_critical_method=fluid.pseudo_critical_method,

@@ -101,6 +101,9 @@ def fluid(field_id: FieldId, session: SessionDep, user: Reader):
     out["lab_points"] = [
         dataclasses.asdict(p) | {"difference_frac": p.difference_frac} for p in view.lab_points
     ]
+    out["at_pressures"] = [
+        {"at": at, "pressure_psia": p, "z_factor": z, "bg_rcf_per_scf": bg} for at, p, z, bg in view.selected
+    ]
     return out | {"field": dataclasses.asdict(ref)}
 
 

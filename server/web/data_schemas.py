@@ -121,6 +121,13 @@ class FluidCurveRead(Schema):
     correlation_label: str
 
 
+class AtPressureRead(BaseModel):
+    at: Literal["initial", "abandonment"]
+    pressure_psia: float
+    z_factor: float = Field(description="the estimate's z (lab table when it uses one)")
+    bg_rcf_per_scf: float
+
+
 class FluidRead(Schema):
     field: FieldRefRead
     gas_gravity: float
@@ -141,6 +148,7 @@ class FluidRead(Schema):
     standard_conditions: str = Field(description="the basis of every Bg (scf at these conditions)")
     lab_points: list[LabPointRead]
     curve: FluidCurveRead | None
+    at_pressures: list[AtPressureRead]
     notes: list[str]
 
 

@@ -279,6 +279,11 @@ def test_fluid_twin_z_and_bg_agree_with_check_value_13(db, client, seeded):
     assert c["pressure_psia"][0] == pytest.approx(14.69595) and c["pressure_psia"][-1] == 5000.0
     assert api["uses_lab_table"] and c["z_used"][c["pressure_psia"].index(3000.0)] == pytest.approx(0.90)
     assert api["standard_conditions"] == "60 °F, 14.696 psia" and len(api["lab_points"]) == 3
+    initial_z = client.get(f"/api/fields/{seeded}").json()["detail"]["prepared"]["initial_z"]
+    assert api["at_pressures"][0] == {
+        "at": "initial", "pressure_psia": 5000.0, "z_factor": initial_z,
+        "bg_rcf_per_scf": pytest.approx(0.0282795 * initial_z * 659.67 / 5000, rel=1e-5),  # check value 1
+    }  # fmt: skip
 
 
 def test_fluid_page_in_si_units_checks_bg_against_check_value_3(db, client, admin_client, seeded):
