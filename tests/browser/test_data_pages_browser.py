@@ -36,7 +36,7 @@ def test_field_data_pages(page, live_server, console_errors, screenshot_dir):
 
     _data_link(page, "Production")
     page.get_by_label("Months from").fill("2020-01-01")
-    page.get_by_label("to", exact=True).fill("2020-12-31")
+    page.get_by_label("Months to").fill("2020-12-31")
     with page.expect_navigation():
         page.get_by_role("button", name="Search").click()
     assert page.locator("#showing-top").inner_text() == "Showing 1–36 of 36 production months, page 1 of 1"
