@@ -70,7 +70,7 @@ class Paging:
 class ListFilter:
     """Search shared by the survey and production lists (dates inclusive)."""
 
-    well: str | None = None  # case-insensitive substring of the well name
+    well: str | None = None  # case-insensitive substring of the well name; "in quotes": the whole name
     date_from: dt.date | None = None
     date_to: dt.date | None = None
     status: SurveyStatus = "all"  # surveys only
@@ -205,7 +205,10 @@ def wells(session: Session, field_id: int) -> list[WellRow]:
 
 
 def _well_match(stmt, flt: ListFilter):
-    if flt.well:
+    """Part of a well name, or the whole name when the search is in double quotes ("W-1")."""
+    if flt.well and len(flt.well) > 2 and flt.well[0] == flt.well[-1] == '"':
+        stmt = stmt.where(func.lower(Well.name) == flt.well[1:-1].lower())
+    elif flt.well:
         escaped = flt.well.lower().replace("\\", "\\\\").replace("%", "\\%").replace("_", "\\_")
         stmt = stmt.where(func.lower(Well.name).like(f"%{escaped}%", escape="\\"))
     return stmt

@@ -60,7 +60,10 @@ PerPage = Annotated[
 WellSearch = Annotated[
     str | None,
     BeforeValidator(_search_text),
-    Query(description=f"part of the well name (not case-sensitive; at most {MAX_SEARCH_CHARS} characters)"),
+    Query(
+        description=f"part of the well name (not case-sensitive; at most {MAX_SEARCH_CHARS} characters);"
+        ' in double quotes, the whole name ("W-1" does not match W-10)'
+    ),
 ]
 DateFrom = Annotated[IsoDate, Query(description="first date to include, YYYY-MM-DD (inclusive)")]
 DateTo = Annotated[IsoDate, Query(description="last date to include, YYYY-MM-DD (inclusive)")]

@@ -149,6 +149,16 @@ def test_surveys_search_by_well_dates_status_and_quality(db, client, seeded):
     assert api["filter"]["status"] == "excluded"
 
 
+def test_a_quoted_well_search_is_the_whole_name_and_the_wells_page_links_that_way(client, seeded):
+    url = f"/api/fields/{seeded}/surveys?per_page=200&well="
+    wells_of = lambda q: {s["well"] for s in client.get(url + q).json()["surveys"]}  # noqa: E731
+    assert wells_of("W") == {"W-1", "W-2"}  # part of the name (W-10 has no surveys)
+    assert wells_of("%22W%22") == set()  # "W" in quotes: the whole name
+    assert wells_of("%22w-1%22") == {"W-1"}  # not case-sensitive
+    page = client.get(f"/fields/{seeded}/wells").text
+    assert f"/fields/{seeded}/surveys?well=%22W-1%22" in page
+
+
 def test_surveys_show_datum_pressure_and_pz_from_the_estimate(db, client, seeded):
     api = client.get(f"/api/fields/{seeded}/surveys?well=W-1&per_page=200").json()
     s = api["surveys"][-1]  # the oldest survey, at the datum depth already
