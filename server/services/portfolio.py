@@ -9,7 +9,7 @@ import datetime as dt
 from dataclasses import dataclass
 
 from sqlalchemy import func, select
-from sqlalchemy.orm import Session, selectinload
+from sqlalchemy.orm import Session, defer, selectinload
 
 from ..db.models import Estimate, Field, PressureSurvey, VolumetricEstimate, Well
 from ..engine.aggregation import FieldVolume, PortfolioTotal, aggregate_portfolio
@@ -59,6 +59,23 @@ class PortfolioRow:
         if self.estimate is None or self.estimate.giip_best_bscf is None or self.volumetric is None:
             return None
         return self.estimate.giip_best_bscf / self.volumetric.best_bscf
+
+    @property
+    def depletion_frac(self) -> float | None:
+        """Produced / dynamic best GIIP: the fraction by which the fitted (corrected) p/z
+        line has fallen at today's cumulative gas, since (p/z)* = a (1 - Gp/G)."""
+        e = self.estimate
+        if e is None or e.status != "ok" or not e.giip_best_bscf or e.giip_best_bscf <= 0:
+            return None
+        return e.cumulative_gas_bscf / e.giip_best_bscf
+
+    @property
+    def flags(self) -> list:
+        return list(self.estimate.flags) if self.estimate is not None else []
+
+    @property
+    def flag_codes(self) -> list[str]:
+        return [f.get("code", "") for f in self.flags]
 
     @property
     def volumetric_position(self) -> str | None:
@@ -111,15 +128,19 @@ def _volumetric(v: VolumetricEstimate | None) -> VolumetricRange | None:
     return VolumetricRange(v.giip_low_bscf, v.giip_best_bscf, v.giip_high_bscf, v.estimate_date, v.author)
 
 
-def latest_estimates(session: Session, field_ids) -> dict[int, Estimate]:
-    """Newest estimate per field, in one query."""
+def latest_estimates(session: Session, field_ids, *, with_detail: bool = True) -> dict[int, Estimate]:
+    """Newest estimate per field, in one query (``with_detail=False`` leaves the large
+    ``detail`` JSON unloaded: the portfolio table does not show it)."""
     newest = (
         select(Estimate.field_id, func.max(Estimate.id).label("id"))
         .where(Estimate.field_id.in_(list(field_ids)))
         .group_by(Estimate.field_id)
         .subquery()
     )
-    rows = session.execute(select(Estimate).join(newest, Estimate.id == newest.c.id)).scalars()
+    stmt = select(Estimate).join(newest, Estimate.id == newest.c.id)
+    if not with_detail:
+        stmt = stmt.options(defer(Estimate.detail, raiseload=True))
+    rows = session.execute(stmt).scalars()
     return {e.field_id: e for e in rows}
 
 
@@ -152,7 +173,7 @@ def portfolio_rows(session: Session, asset_ids: frozenset[int] | None = None) ->
         stmt = stmt.where(Field.asset_id.in_(sorted(asset_ids)))
     fields = session.execute(stmt).scalars().all()
     ids = [f.id for f in fields]
-    est = latest_estimates(session, ids)
+    est = latest_estimates(session, ids, with_detail=False)
     vol = _latest_volumetrics(session, ids)
     last = _last_surveys(session, ids)
     return [

@@ -5,10 +5,11 @@ from __future__ import annotations
 from fastapi import APIRouter, HTTPException
 
 from ..engine import ENGINE_VERSION
-from ..services.portfolio import field_detail, portfolio_rows
+from ..services.portfolio import field_detail
 from ..services.recompute import current_estimate
 from .auth import Public, Reader
 from .deps import SessionDep
+from .portfolio_pages import QueryDep, selected_rows
 from .schemas import ErrorRead, EstimateRead, FieldId, FieldRead, HealthRead, PortfolioRowRead
 
 router = APIRouter(prefix="/api")
@@ -21,13 +22,18 @@ def health():
 
 
 @router.get("/portfolio", response_model=list[PortfolioRowRead], tags=["portfolio"], name="api_portfolio")
-def portfolio(session: SessionDep, user: Reader):
-    return [_row(r) for r in portfolio_rows(session, user.asset_ids)]
+def portfolio(session: SessionDep, user: Reader, query: QueryDep):
+    """The portfolio table: the same filters and sorting as the page (by name by default)."""
+    _, rows, _ = selected_rows(session, user, query)
+    return [_row(r) for r in rows]
 
 
 def _row(r) -> dict:
     d = PortfolioRowRead.model_validate(r).model_dump()
     d["dynamic_to_volumetric"] = r.dynamic_to_volumetric
+    d["volumetric_position"] = r.volumetric_position
+    d["depletion_frac"] = r.depletion_frac
+    d["flag_codes"] = r.flag_codes
     return d
 
 

@@ -59,6 +59,10 @@ class PortfolioRowRead(Schema):
     volumetric: VolumetricRead | None
     last_survey_date: dt.date | None
     dynamic_to_volumetric: float | None
+    # Added with the portfolio filters (issue 6); older clients ignore them.
+    volumetric_position: Literal["below", "within", "above"] | None = None
+    depletion_frac: float | None = None  # produced / dynamic best GIIP
+    flag_codes: list[str] = []
 
 
 class WellRead(Schema):
