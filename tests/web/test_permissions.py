@@ -86,6 +86,8 @@ DATA_PAGES = ("wells", "surveys", "production", "fluid", "volumetric")  # web/da
 MATRIX = [
     (("GET", "/", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/fields/{fid}", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio.csv", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio.xlsx", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/upload", None), ("login", 403, "ok", "ok", "ok")),
     (("GET", "/account", None), ("login", "ok", "ok", "ok", "ok")),
     (("POST", "/account/units", None), ("login", "redirect", "redirect", "redirect", "redirect")),
