@@ -178,8 +178,9 @@ def apply_query(rows: list[PortfolioRow], q: PortfolioQuery) -> list[PortfolioRo
     return present + missing
 
 
-def describe(q: PortfolioQuery) -> str:
-    """The filters in words, for the totals and the exports ("" when none)."""
+def describe(q: PortfolioQuery, options: Choices | None = None) -> str:
+    """The filters in words, for the totals and the exports ("" when none); with
+    ``options`` a flag is named by its title too."""
     parts = []
     if q.asset:
         parts.append(f"asset {q.asset}")
@@ -190,5 +191,6 @@ def describe(q: PortfolioQuery) -> str:
     elif q.flag == NO_FLAG:
         parts.append("fields without flags")
     elif q.flag:
-        parts.append(f"flag {q.flag}")
+        title = next((f.title for f in (options.flags if options else []) if f.code == q.flag), None)
+        parts.append(f"flag “{title}” ({q.flag})" if title else f"flag {q.flag}")
     return "; ".join(parts)

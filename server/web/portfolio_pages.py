@@ -102,7 +102,7 @@ def portfolio_page(request: Request, session: SessionDep, user: Reader, query: Q
         "n_all": len(every),
         "q": query,
         "options": options,
-        "filters": describe(query),
+        "filters": describe(query, options),
         "sorting": _sorting(query),
         "totals": portfolio_totals(rows),
         "figure": portfolio_figure(rows, du),
@@ -129,14 +129,18 @@ def _download(content: bytes, media_type: str, extension: str, request: Request)
 
 @router.get("/portfolio.csv", name="portfolio_csv")
 def portfolio_csv_export(request: Request, session: SessionDep, user: Reader, query: QueryDep):
-    _, rows, _ = selected_rows(session, user, query)
-    body = portfolio_csv(rows, units_for_request(request), describe(query), request.app.state.clock())
+    _, rows, options = selected_rows(session, user, query)
+    body = portfolio_csv(
+        rows, units_for_request(request), describe(query, options), request.app.state.clock()
+    )
     return _download(body, "text/csv; charset=utf-8", "csv", request)
 
 
 @router.get("/portfolio.xlsx", name="portfolio_xlsx")
 def portfolio_xlsx_export(request: Request, session: SessionDep, user: Reader, query: QueryDep):
-    _, rows, _ = selected_rows(session, user, query)
-    body = portfolio_xlsx(rows, units_for_request(request), describe(query), request.app.state.clock())
+    _, rows, options = selected_rows(session, user, query)
+    body = portfolio_xlsx(
+        rows, units_for_request(request), describe(query, options), request.app.state.clock()
+    )
     media = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
     return _download(body, media, "xlsx", request)

@@ -161,8 +161,9 @@ def test_filter_by_flag_and_by_asset_with_totals_of_the_filtered_set(portfolio, 
     ids = portfolio
     html = client.get("/?flag=dynamic_below_volumetric").text
     assert _ids(html) == [ids["Lowfield"]]
-    assert "Showing 1 of 4 fields (flag dynamic_below_volumetric)" in html
-    assert "Totals of the 1 fields shown" in html and "Filtered: flag dynamic_below_volumetric." in html
+    named = "flag “Dynamic GIIP below the volumetric low case” (dynamic_below_volumetric)"
+    assert f"Showing 1 of 4 fields ({named})" in html
+    assert "Totals of the 1 field shown" in html and f"Filtered: {named}." in html
     assert _totals(html, "volumetric")[:5] == ["1", "80", "100", "125", _totals(html, "volumetric")[4]]
     assert re.search(r'<option value="dynamic_below_volumetric" selected>', html)
     assert 'href="/portfolio.csv?flag=dynamic_below_volumetric"' in html
@@ -285,3 +286,11 @@ def test_a_user_limited_to_an_asset_exports_and_filters_only_its_fields(db, port
     assert "Wetfield" not in r.text
     page = c.get("/").text
     assert '<option value="South"' not in page
+
+
+def test_portfolio_links_point_at_the_page_not_the_api(client):
+    # the API's route was once also called "portfolio", so url_for('portfolio') gave /api/portfolio
+    html = client.get("/").text
+    assert re.search(r'<a class="brand" href="(http://127.0.0.1:8000)?/">', html)
+    assert re.search(r'<form method="get" action="(http://127.0.0.1:8000)?/"', html)
+    assert "/api/portfolio" not in html
