@@ -106,6 +106,8 @@ def portfolio_page(request: Request, session: SessionDep, user: Reader, query: Q
         "sorting": _sorting(query),
         "totals": portfolio_totals(rows),
         "figure": portfolio_figure(rows, du),
+        # one url_for for all rows: it costs about 0.2 ms a call, 100 ms on a 500-field page
+        "field_href": str(request.url_for("field_page", field_id=0))[:-1],
         "flag_style": FLAG_STYLE,
         "palette": OKABE_ITO,
         "csv_href": request.url_for("portfolio_csv").path + (f"?{export}" if export else ""),
