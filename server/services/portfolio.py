@@ -258,6 +258,7 @@ def portfolio_totals(rows: list[PortfolioRow]) -> PortfolioTotals:
     Volumetric: each field's latest low/best/high. Dynamic: the stored estimate's
     low/best/high (the P90/P10 of its bootstrap, or its interval when there is none).
     """
+    rows = sorted(rows, key=lambda r: (r.name, r.field_id))  # the same set, the same totals, in any order
     vol = tuple(
         (r.name, v.low_bscf, v.best_bscf, v.high_bscf) for r in rows if (v := r.volumetric) is not None
     )

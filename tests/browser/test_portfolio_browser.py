@@ -58,4 +58,18 @@ def test_portfolio_filter_sort_chart(page, live_server, console_errors, screensh
     assert th.get_attribute("aria-sort") == "descending"
     assert _numbers(page, "dynamic_best") == sorted(values, reverse=True)
     page.wait_for_selector("#chart-portfolio[data-drawn='true']", timeout=15000)
+
+    # printed: no navigation or form, the whole table, black on white
+    page.emulate_media(media="print")
+    assert (
+        not page.locator("header.topbar").is_visible() and not page.locator("#portfolio-filters").is_visible()
+    )
+    assert page.locator(".table-scroll").evaluate("e => getComputedStyle(e).overflowX") == "visible"
+    colours = page.locator("#portfolio-table thead th").first.evaluate(
+        "e => [getComputedStyle(e).color, getComputedStyle(e).backgroundColor]"
+    )
+    assert colours == ["rgb(0, 0, 0)", "rgb(255, 255, 255)"]
+    page.screenshot(path=str(screenshot_dir / "portfolio-print.png"), full_page=True)
+    page.emulate_media(media="screen")
+    assert page.locator("#portfolio-filters").is_visible()
     assert console_errors == []
