@@ -97,6 +97,7 @@ MATRIX = [
     (("GET", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
     (("POST", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/api/portfolio", None), (401, "ok", "ok", "ok", "ok")),
+    (("GET", "/api/portfolio/totals", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}/audit", None), (401, "ok", "ok", "ok", "ok")),
     *((("GET", f"/fields/{{fid}}/{d}", None), ("login", "ok", "ok", "ok", "ok")) for d in DATA_PAGES),

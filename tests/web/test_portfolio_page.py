@@ -303,3 +303,15 @@ def test_totals_do_not_depend_on_the_sort_order(portfolio, client):
     by_size = client.get("/?sort=volumetric_best&order=desc").text
     for kind in ("volumetric", "dynamic"):
         assert _totals(by_name, kind) == _totals(by_size, kind)
+
+
+def test_totals_twin_matches_the_page(portfolio, client):
+    html = client.get("/?asset=South").text
+    t = client.get("/api/portfolio/totals?asset=South").json()
+    assert t["n_fields"] == 2 and t["filters"] == "asset South"
+    vol = t["volumetric"]
+    assert vol["n_fields"] == 2 and vol["arithmetic_p50_bscf"] == pytest.approx(280.0, rel=1e-4)
+    assert f"{vol['p90_bscf']:,.0f}".replace(",", "") == _totals(html, "volumetric")[5].split(" / ")[0]
+    assert t["dynamic"]["n_fields"] == 1 and t["dynamic"]["dependence"] == "single field"
+    assert client.get("/api/portfolio/totals?flag=none&asset=North").json()["dynamic"]["n_fields"] == 1
+    assert client.get("/api/portfolio/totals?sort=nope").status_code == 422
