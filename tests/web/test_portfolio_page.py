@@ -315,3 +315,18 @@ def test_totals_twin_matches_the_page(portfolio, client):
     assert t["dynamic"]["n_fields"] == 1 and t["dynamic"]["dependence"] == "single field"
     assert client.get("/api/portfolio/totals?flag=none&asset=North").json()["dynamic"]["n_fields"] == 1
     assert client.get("/api/portfolio/totals?sort=nope").status_code == 422
+
+
+def test_the_users_own_unit_choice_applies_to_page_chart_and_exports(portfolio, client):
+    ids = portfolio
+    assert client.put("/api/me/units", json={"unit_system": "si"}).status_code == 200
+    html = client.get("/").text
+    assert _cell(html, ids["Wetfield"], "dynamic_best") == f"{170.0 * MM3_PER_BSCF:,.1f}"
+    fig = json.loads(re.search(r'id="portfolio-figure">(.*?)</script>', html, re.S).group(1))
+    assert "10⁶ m³" in fig["layout"]["yaxis"]["title"]["text"]
+    wb = openpyxl.load_workbook(io.BytesIO(client.get("/portfolio.xlsx?asset=South").content))
+    header = [c.value for c in wb["portfolio"][1]]
+    col = header.index("volumetric GIIP best [10⁶ m³ (15 °C, 101.325 kPa)]")
+    assert wb["portfolio"].cell(2, col + 1).value == pytest.approx(180.0 * MM3_PER_BSCF, abs=1e-3)
+    assert client.put("/api/me/units", json={"unit_system": "oilfield"}).status_code == 200
+    assert _cell(client.get("/").text, ids["Wetfield"], "dynamic_best") == "170.0"
