@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import datetime as dt
 import io
+import math
 
 import xlsxwriter
 
@@ -61,6 +62,8 @@ def _columns(du: DisplayUnits):
 
 
 def _rounded(value, du: DisplayUnits, kind: str | None):
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
     if kind is None:
         return round(value, 4) if isinstance(value, float) else value
     shown = du.value(kind, value)

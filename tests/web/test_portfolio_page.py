@@ -330,3 +330,16 @@ def test_the_users_own_unit_choice_applies_to_page_chart_and_exports(portfolio, 
     assert wb["portfolio"].cell(2, col + 1).value == pytest.approx(180.0 * MM3_PER_BSCF, abs=1e-3)
     assert client.put("/api/me/units", json={"unit_system": "oilfield"}).status_code == 200
     assert _cell(client.get("/").text, ids["Wetfield"], "dynamic_best") == "170.0"
+
+
+def test_an_empty_portfolio_renders(client):
+    r = client.get("/")
+    assert r.status_code == 200 and "No field matches these filters." in r.text
+    assert "Showing 0 of 0 fields" in r.text
+    assert client.get("/portfolio.xlsx").status_code == 200
+    assert client.get("/api/portfolio/totals").json() == {
+        "n_fields": 0,
+        "filters": "",
+        "volumetric": None,
+        "dynamic": None,
+    }
