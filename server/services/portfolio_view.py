@@ -149,7 +149,7 @@ def check_against(query: PortfolioQuery, options: Choices) -> None:
         ("basin", query.basin, options.basins),
     ):
         if value and value not in known:
-            shown = ", ".join(repr(k) for k in known[:20]) + (", ..." if len(known) > 20 else "")
+            shown = ", ".join(repr(k) for k in known[:20]) + (", ..." if len(known) > 20 else "") or "none"
             raise PortfolioQueryError(
                 name, f"no {name} named {value[:120]!r} in your portfolio; known: {shown}"
             )
