@@ -34,6 +34,7 @@ from .web.auth import Public, Reader, document_auth_errors
 from .web.display import units_for_request
 from .web.errors import install_error_handlers
 from .web.limits import UploadLimitMiddleware
+from .web.portfolio_pages import router as portfolio_router
 from .web.security import CrossSiteGuardMiddleware, SecurityHeadersMiddleware
 from .web.templating import make_templates
 
@@ -131,6 +132,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(account_pages.router)
     app.include_router(admin_pages.router)
     app.include_router(pages.router)
+    app.include_router(portfolio_router)
     app.include_router(uploads.router)
     app.include_router(data_pages.router)
     app.include_router(api_data.router)

@@ -5,13 +5,15 @@ Pages never compute estimates: they read the newest stored estimate of each fiel
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
+import functools
 from dataclasses import dataclass
 
 from sqlalchemy import func, select
-from sqlalchemy.orm import Session, selectinload
+from sqlalchemy.orm import Session
 
-from ..db.models import Estimate, Field, PressureSurvey, VolumetricEstimate, Well
+from ..db.models import Asset, Estimate, Field, PressureSurvey, VolumetricEstimate, Well
 from ..engine.aggregation import FieldVolume, PortfolioTotal, aggregate_portfolio
 
 
@@ -59,6 +61,23 @@ class PortfolioRow:
         if self.estimate is None or self.estimate.giip_best_bscf is None or self.volumetric is None:
             return None
         return self.estimate.giip_best_bscf / self.volumetric.best_bscf
+
+    @property
+    def depletion_frac(self) -> float | None:
+        """Produced / dynamic best GIIP: the fraction by which the fitted (corrected) p/z
+        line has fallen at today's cumulative gas, since (p/z)* = a (1 - Gp/G)."""
+        e = self.estimate
+        if e is None or e.status != "ok" or not e.giip_best_bscf or e.giip_best_bscf <= 0:
+            return None
+        return e.cumulative_gas_bscf / e.giip_best_bscf
+
+    @property
+    def flags(self) -> list:
+        return list(self.estimate.flags) if self.estimate is not None else []
+
+    @property
+    def flag_codes(self) -> list[str]:
+        return [f.get("code", "") for f in self.flags]
 
     @property
     def volumetric_position(self) -> str | None:
@@ -111,16 +130,46 @@ def _volumetric(v: VolumetricEstimate | None) -> VolumetricRange | None:
     return VolumetricRange(v.giip_low_bscf, v.giip_best_bscf, v.giip_high_bscf, v.estimate_date, v.author)
 
 
-def latest_estimates(session: Session, field_ids) -> dict[int, Estimate]:
-    """Newest estimate per field, in one query."""
-    newest = (
+def _newest_ids(field_ids):
+    return (
         select(Estimate.field_id, func.max(Estimate.id).label("id"))
         .where(Estimate.field_id.in_(list(field_ids)))
         .group_by(Estimate.field_id)
         .subquery()
     )
+
+
+def latest_estimates(session: Session, field_ids) -> dict[int, Estimate]:
+    """Newest estimate per field, in one query."""
+    newest = _newest_ids(field_ids)
     rows = session.execute(select(Estimate).join(newest, Estimate.id == newest.c.id)).scalars()
     return {e.field_id: e for e in rows}
+
+
+_SUMMARY_COLUMNS = [getattr(Estimate, f.name) for f in dataclasses.fields(EstimateSummary)]
+
+
+def _latest_summaries(session: Session, field_ids) -> dict[int, EstimateSummary]:
+    """Newest estimate per field as summaries, in one query of plain columns: no ORM
+    objects and not the large ``detail`` JSON, which the portfolio table does not show."""
+    newest = _newest_ids(field_ids)
+    stmt = select(Estimate.field_id, *_SUMMARY_COLUMNS).join(newest, Estimate.id == newest.c.id)
+    out = {}
+    for fid, *values in session.execute(stmt):
+        e = EstimateSummary(*values)
+        out[fid] = e if isinstance(e.flags, list) else dataclasses.replace(e, flags=list(e.flags or []))
+    return out
+
+
+def _latest_volumetric_ranges(session: Session, field_ids) -> dict[int, VolumetricRange]:
+    """Latest volumetric range per field from plain columns (the last by date, then id)."""
+    v = VolumetricEstimate
+    stmt = (
+        select(v.field_id, v.giip_low_bscf, v.giip_best_bscf, v.giip_high_bscf, v.estimate_date, v.author)
+        .where(v.field_id.in_(list(field_ids)))
+        .order_by(v.estimate_date, v.id)
+    )
+    return {fid: VolumetricRange(*values) for fid, *values in session.execute(stmt)}
 
 
 def _latest_volumetrics(session: Session, field_ids) -> dict[int, VolumetricEstimate]:
@@ -147,25 +196,17 @@ def _last_surveys(session: Session, field_ids) -> dict[int, dt.date]:
 def portfolio_rows(session: Session, asset_ids: frozenset[int] | None = None) -> list[PortfolioRow]:
     """One row per field with its current estimate and latest volumetric range
     (only fields of ``asset_ids`` when given: a user limited to some assets)."""
-    stmt = select(Field).options(selectinload(Field.asset)).order_by(Field.name)
+    stmt = select(Field.id, Field.name, Asset.name, Asset.basin).join(Asset).order_by(Field.name)
     if asset_ids is not None:
         stmt = stmt.where(Field.asset_id.in_(sorted(asset_ids)))
-    fields = session.execute(stmt).scalars().all()
-    ids = [f.id for f in fields]
-    est = latest_estimates(session, ids)
-    vol = _latest_volumetrics(session, ids)
+    fields = session.execute(stmt).all()
+    ids = [f[0] for f in fields]
+    est = _latest_summaries(session, ids)
+    vol = _latest_volumetric_ranges(session, ids)
     last = _last_surveys(session, ids)
     return [
-        PortfolioRow(
-            f.id,
-            f.name,
-            f.asset.name,
-            f.asset.basin,
-            _summary(est.get(f.id)),
-            _volumetric(vol.get(f.id)),
-            last.get(f.id),
-        )
-        for f in fields
+        PortfolioRow(fid, name, asset, basin, est.get(fid), vol.get(fid), last.get(fid))
+        for fid, name, asset, basin in fields
     ]
 
 
@@ -217,20 +258,25 @@ def portfolio_totals(rows: list[PortfolioRow]) -> PortfolioTotals:
     Volumetric: each field's latest low/best/high. Dynamic: the stored estimate's
     low/best/high (the P90/P10 of its bootstrap, or its interval when there is none).
     """
-    vol = [
-        FieldVolume(r.name, low_bscf=v.low_bscf, best_bscf=v.best_bscf, high_bscf=v.high_bscf)
-        for r in rows
-        if (v := r.volumetric) is not None
-    ]
-    dyn = [
-        FieldVolume(r.name, low_bscf=e.giip_low_bscf, best_bscf=e.giip_best_bscf, high_bscf=e.giip_high_bscf)
+    rows = sorted(rows, key=lambda r: (r.name, r.field_id))  # the same set, the same totals, in any order
+    vol = tuple(
+        (r.name, v.low_bscf, v.best_bscf, v.high_bscf) for r in rows if (v := r.volumetric) is not None
+    )
+    dyn = tuple(
+        (r.name, e.giip_low_bscf, e.giip_best_bscf, e.giip_high_bscf)
         for r in rows
         if (e := r.estimate) is not None
         and e.status == "ok"
         and None not in (e.giip_low_bscf, e.giip_best_bscf, e.giip_high_bscf)
         and 0 < e.giip_low_bscf <= e.giip_best_bscf <= e.giip_high_bscf
-    ]
-    return PortfolioTotals(
-        aggregate_portfolio(vol, trials=TOTAL_TRIALS) if vol else None,
-        aggregate_portfolio(dyn, trials=TOTAL_TRIALS) if dyn else None,
     )
+    return PortfolioTotals(_total(vol) if vol else None, _total(dyn) if dyn else None)
+
+
+@functools.lru_cache(maxsize=64)
+def _total(volumes: tuple[tuple[str, float, float, float], ...]) -> PortfolioTotal:
+    """The totals of these (name, low, best, high) volumes. The result depends on nothing
+    else (the dependence seed is fixed), so it is kept for the next page view: 500 fields
+    take about 60 ms per total, and most views repeat the last set."""
+    fields = [FieldVolume(n, low_bscf=lo, best_bscf=b, high_bscf=hi) for n, lo, b, hi in volumes]
+    return aggregate_portfolio(fields, trials=TOTAL_TRIALS)

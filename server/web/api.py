@@ -5,11 +5,21 @@ from __future__ import annotations
 from fastapi import APIRouter, HTTPException
 
 from ..engine import ENGINE_VERSION
-from ..services.portfolio import field_detail, portfolio_rows
+from ..services.portfolio import field_detail, portfolio_totals
+from ..services.portfolio_view import describe
 from ..services.recompute import current_estimate
 from .auth import Public, Reader
 from .deps import SessionDep
-from .schemas import ErrorRead, EstimateRead, FieldId, FieldRead, HealthRead, PortfolioRowRead
+from .portfolio_pages import QueryDep, selected_rows
+from .schemas import (
+    ErrorRead,
+    EstimateRead,
+    FieldId,
+    FieldRead,
+    HealthRead,
+    PortfolioRowRead,
+    PortfolioTotalsRead,
+)
 
 router = APIRouter(prefix="/api")
 NOT_FOUND = {404: {"model": ErrorRead, "description": "no such field (or not in your assets)"}}
@@ -21,13 +31,31 @@ def health():
 
 
 @router.get("/portfolio", response_model=list[PortfolioRowRead], tags=["portfolio"], name="api_portfolio")
-def portfolio(session: SessionDep, user: Reader):
-    return [_row(r) for r in portfolio_rows(session, user.asset_ids)]
+def portfolio(session: SessionDep, user: Reader, query: QueryDep):
+    """The portfolio table: the same filters and sorting as the page (by name by default)."""
+    _, rows, _ = selected_rows(session, user, query)
+    return [_row(r) for r in rows]
+
+
+@router.get("/portfolio/totals", response_model=PortfolioTotalsRead, tags=["portfolio"])
+def portfolio_totals_api(session: SessionDep, user: Reader, query: QueryDep):
+    """Totals of the fields that match the filters (means add, percentiles do not)."""
+    _, rows, options = selected_rows(session, user, query)
+    totals = portfolio_totals(rows)
+    return PortfolioTotalsRead(
+        n_fields=len(rows),
+        filters=describe(query, options),
+        volumetric=totals.volumetric,
+        dynamic=totals.dynamic,
+    )
 
 
 def _row(r) -> dict:
     d = PortfolioRowRead.model_validate(r).model_dump()
     d["dynamic_to_volumetric"] = r.dynamic_to_volumetric
+    d["volumetric_position"] = r.volumetric_position
+    d["depletion_frac"] = r.depletion_frac
+    d["flag_codes"] = r.flag_codes
     return d
 
 

@@ -1,4 +1,5 @@
-"""Server-rendered pages. Routes stay thin: parse, call a service, render plain data."""
+"""Server-rendered pages (the portfolio page: portfolio_pages.py). Routes stay thin: parse, call a
+service, render plain data."""
 
 from __future__ import annotations
 
@@ -8,7 +9,7 @@ from fastapi import APIRouter, HTTPException, Request
 from fastapi.responses import HTMLResponse
 
 from ..services.audit import field_events
-from ..services.portfolio import field_detail, portfolio_rows, portfolio_totals
+from ..services.portfolio import field_detail
 from .auth import Reader
 from .charts import cole_figure, model_fits_figure, pz_figure
 from .deps import SessionDep
@@ -23,13 +24,6 @@ def render(request: Request, template: str, context: dict, status_code: int = 20
     )
     response.headers["Cache-Control"] = "no-store"
     return response
-
-
-@router.get("/", response_class=HTMLResponse, name="portfolio")
-def portfolio_page(request: Request, session: SessionDep, user: Reader):
-    rows = portfolio_rows(session, user.asset_ids)
-    context = {"rows": rows, "totals": portfolio_totals(rows), "title": "Portfolio"}
-    return render(request, "portfolio.html", context)
 
 
 @router.get("/fields/{field_id}", response_class=HTMLResponse, name="field_page")

@@ -59,6 +59,35 @@ class PortfolioRowRead(Schema):
     volumetric: VolumetricRead | None
     last_survey_date: dt.date | None
     dynamic_to_volumetric: float | None
+    # Added with the portfolio filters (issue 6); older clients ignore them.
+    volumetric_position: Literal["below", "within", "above"] | None = None
+    depletion_frac: float | None = None  # produced / dynamic best GIIP
+    flag_codes: list[str] = []
+
+
+class PortfolioTotalRead(Schema):
+    """Totals of one set of GIIP ranges [Bscf at the storage basis]; P90 = 10th percentile."""
+
+    n_fields: int
+    arithmetic_p90_bscf: float
+    arithmetic_p50_bscf: float
+    arithmetic_p10_bscf: float
+    mean_bscf: float
+    p90_bscf: float
+    p50_bscf: float
+    p10_bscf: float
+    dependence: str
+    trials: int
+    seed: int
+
+
+class PortfolioTotalsRead(Schema):
+    """The portfolio page's totals of the fields that match the filters."""
+
+    n_fields: int
+    filters: str
+    volumetric: PortfolioTotalRead | None
+    dynamic: PortfolioTotalRead | None
 
 
 class WellRead(Schema):

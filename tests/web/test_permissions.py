@@ -86,6 +86,8 @@ DATA_PAGES = ("wells", "surveys", "production", "fluid", "volumetric")  # web/da
 MATRIX = [
     (("GET", "/", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/fields/{fid}", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio.csv", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio.xlsx", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/upload", None), ("login", 403, "ok", "ok", "ok")),
     (("GET", "/account", None), ("login", "ok", "ok", "ok", "ok")),
     (("POST", "/account/units", None), ("login", "redirect", "redirect", "redirect", "redirect")),
@@ -95,6 +97,7 @@ MATRIX = [
     (("GET", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
     (("POST", "/admin/settings", None), ("login", 403, 403, 403, "ok")),
     (("GET", "/api/portfolio", None), (401, "ok", "ok", "ok", "ok")),
+    (("GET", "/api/portfolio/totals", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}", None), (401, "ok", "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}/audit", None), (401, "ok", "ok", "ok", "ok")),
     *((("GET", f"/fields/{{fid}}/{d}", None), ("login", "ok", "ok", "ok", "ok")) for d in DATA_PAGES),
