@@ -24,9 +24,11 @@ from .web import (
     api,
     api_accounts,
     api_data,
+    api_fields,
     api_settings,
     api_uploads,
     data_pages,
+    field_pages,
     pages,
     uploads,
 )
@@ -136,5 +138,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(uploads.router)
     app.include_router(data_pages.router)
     app.include_router(api_data.router)
+    app.include_router(field_pages.router)
+    app.include_router(api_fields.router)
     document_auth_errors(app)
     return app

@@ -207,6 +207,12 @@ def run_one(db: Database, worker: str | None = None, stale_after: dt.timedelta =
     except OperationalError:
         log.info("queue busy; trying again")  # SQLite: another writer held the lock too long
         return True
+    _run_claimed(db, job_id)
+    return True
+
+
+def _run_claimed(db: Database, job_id: int) -> None:
+    """Run a job this process claimed; a failure leaves it queued for another attempt."""
     try:
         run_job(db, job_id)
     except Exception as exc:
@@ -216,7 +222,32 @@ def run_one(db: Database, worker: str | None = None, stale_after: dt.timedelta =
             job = session.get(Job, job_id)
             job.status = "failed" if job.attempts >= MAX_ATTEMPTS else "queued"
             job.finished_at = utcnow() if job.status == "failed" else None
-    return True
+
+
+def run_now(db: Database, job_id: int, *, wait_seconds: float = 30.0, worker: str | None = None) -> str:
+    """Run one queued job in the caller's thread (a page that shows its own recompute's
+    result), or, if a worker has already claimed it, wait up to ``wait_seconds`` for it.
+
+    Returns the job's status at the end ("done", "failed", or still "queued"/"running")."""
+    import time
+
+    worker = worker or worker_name()
+    with db.session() as session:
+        write_first(session)
+        claimed = session.execute(
+            update(Job)
+            .where(Job.id == job_id, Job.status == "queued", Job.attempts < MAX_ATTEMPTS)
+            .values(status="running", claimed_by=worker, heartbeat_at=utcnow(), attempts=Job.attempts + 1)
+        ).rowcount
+    if claimed:
+        _run_claimed(db, job_id)
+    deadline = time.monotonic() + wait_seconds
+    while True:
+        with db.session() as session:
+            status = session.execute(select(Job.status).where(Job.id == job_id)).scalar_one()
+        if status in ("done", "failed") or time.monotonic() >= deadline:
+            return status
+        time.sleep(0.1)
 
 
 def drain(

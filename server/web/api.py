@@ -8,6 +8,7 @@ from ..engine import ENGINE_VERSION
 from ..services.portfolio import field_detail, portfolio_totals
 from ..services.portfolio_view import describe
 from ..services.recompute import current_estimate
+from .api_fields import field_extras
 from .auth import Public, Reader
 from .deps import SessionDep
 from .portfolio_pages import QueryDep, selected_rows
@@ -66,7 +67,7 @@ def field(field_id: FieldId, session: SessionDep, user: Reader):
         raise HTTPException(status_code=404, detail="no such field")
     out = FieldRead.model_validate(detail).model_dump()
     out["summary"] = _row(detail.summary)
-    return out
+    return out | field_extras(session, field_id)
 
 
 @router.get("/fields/{field_id}/estimate", response_model=EstimateRead, tags=["fields"], responses=NOT_FOUND)

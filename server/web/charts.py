@@ -4,7 +4,10 @@ from __future__ import annotations
 
 from collections import defaultdict
 
+from .display import DisplayUnits
 from .templating import date_from_days
+
+OILFIELD = DisplayUnits("oilfield")  # the default display units of a builder
 
 # Our own palette: distinguishable for common colour-vision deficiencies, paired with shapes.
 WELL_COLOURS = ("#1f5f8b", "#c2571a", "#3c8d5a", "#7a4f9a", "#a8862b", "#2f8f9d", "#8c3b4f")
@@ -21,6 +24,15 @@ def _axis(title: str) -> dict:
     return {"title": {"text": title}, "zeroline": True, "rangemode": "tozero", "gridcolor": "#e3e7eb"}
 
 
+def short_unit(du: DisplayUnits, kind: str) -> str:
+    """A unit label without its standard-conditions basis (for legends and hover text)."""
+    return du.label(kind).split(" (")[0]
+
+
+def _num(du: DisplayUnits, kind: str, value: float, digits: int | None = None) -> str:
+    return f"{du.show(kind, value, digits)} {short_unit(du, kind)}"
+
+
 def _statuses(detail: dict) -> dict[int, dict]:
     """Point status by prepared-point index: from the estimate, else from stage 1 alone."""
     pz = detail.get("pz") or {}
@@ -33,23 +45,24 @@ def _statuses(detail: dict) -> dict[int, dict]:
     return out
 
 
-def _hover(p: dict, s: dict, corrected: bool) -> str:
-    text = f"{p['well'] or 'survey'}, {date_from_days(p['t_days'])}<br>p/z {p['pz_psia']:,.0f} psia"
+def _hover(p: dict, s: dict, corrected: bool, du: DisplayUnits) -> str:
+    text = f"{p['well'] or 'survey'}, {date_from_days(p['t_days'])}<br>p/z {_num(du, 'pz', p['pz_psia'], 0)}"
     if corrected:
-        text += f", corrected {s['corrected_pz_psia']:,.0f} psia"
+        text += f", corrected {_num(du, 'pz', s['corrected_pz_psia'], 0)}"
     if s.get("reason"):
         text += "<br>" + s["reason"]
     return text
 
 
-def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
-    """p/z against cumulative gas.
+def pz_figure(detail: dict, volumetric: dict | None = None, du: DisplayUnits = OILFIELD) -> dict:
+    """p/z against cumulative gas, in the display units ``du``.
 
     Draws: used surveys by well (the ce-corrected p/z when a correction applies, with
     the measured p/z faded behind them); set-aside surveys (engineer's exclusions and
     outliers, each with its reason on hover); the fitted line extended to p/z = 0 with
-    its confidence band; the abandonment point (EUR); GIIP's P90-P10 range on the axis;
-    the uncorrected line for comparison; and the volumetric GIIP range.
+    its confidence band; the abandonment p/z as a dotted level and the abandonment point
+    (EUR); GIIP's P90-P10 range on the axis; the uncorrected line for comparison; and the
+    volumetric GIIP range.
     """
     prepared = detail.get("prepared") or {}
     pz = detail.get("pz") or {}
@@ -74,20 +87,22 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
                 lambda p, s: p["pz_psia"],
                 {"color": UNCORRECTED_COLOUR, "symbol": "circle-open", "size": 7, "opacity": 0.6},
                 corrected,
+                du,
             )
         )
     for i, (well, pts) in enumerate(sorted(by_well.items())):
         marker = {"color": WELL_COLOURS[i % len(WELL_COLOURS)], "symbol": WELL_SYMBOLS[i % len(WELL_SYMBOLS)]}
         traces.append(
-            _markers(well, pts, _y_of(corrected), {**marker, "size": 8}, corrected),
+            _markers(well, pts, _y_of(corrected), {**marker, "size": 8}, corrected, du),
         )
     labels = {"excluded": ("set aside by the engineer", "x-thin-open"), "outlier": ("outlier (rule)", "x")}
     for kind, pts in sorted(set_aside.items()):
         name, symbol = labels.get(kind, (kind, "x"))
         marker = {"color": SET_ASIDE_COLOUR, "symbol": symbol, "size": 10, "line": {"width": 2}}
-        traces.append(_markers(name, pts, _y_of(corrected), marker, corrected))
+        traces.append(_markers(name, pts, _y_of(corrected), marker, corrected, du))
     if pz:
-        traces.extend(_line_traces(pz, prepared, corrected))
+        traces.extend(_line_traces(pz, prepared, corrected, du))
+    gas, pzu = short_unit(du, "gas_bscf"), short_unit(du, "pz")
     uncorrected = detail.get("pz_uncorrected")
     if uncorrected:
         g_u, a_u = uncorrected["giip_bscf"], uncorrected["intercept_psia"]
@@ -95,11 +110,11 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
             {
                 "type": "scatter",
                 "mode": "lines",
-                "name": f"uncorrected line, GIIP {g_u:,.1f} Bscf",
-                "x": [0.0, g_u],
-                "y": [a_u, 0.0],
+                "name": f"uncorrected line, GIIP {_num(du, 'gas_bscf', g_u)}",
+                "x": du.values("gas_bscf", [0.0, g_u]),
+                "y": du.values("pz", [a_u, 0.0]),
                 "line": {"color": UNCORRECTED_COLOUR, "width": 1.5, "dash": "dash"},
-                "hovertemplate": "%{x:.1f} Bscf, %{y:.0f} psia<extra>uncorrected</extra>",
+                "hovertemplate": f"%{{x:.1f}} {gas}, %{{y:.0f}} {pzu}<extra>uncorrected</extra>",
             }
         )
     shapes = []
@@ -109,8 +124,8 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
                 "type": "rect",
                 "xref": "x",
                 "yref": "paper",
-                "x0": volumetric["low_bscf"],
-                "x1": volumetric["high_bscf"],
+                "x0": du.value("gas_bscf", volumetric["low_bscf"]),
+                "x1": du.value("gas_bscf", volumetric["high_bscf"]),
                 "y0": 0,
                 "y1": 0.06,
                 "fillcolor": VOLUMETRIC_COLOUR,
@@ -118,24 +133,27 @@ def pz_figure(detail: dict, volumetric: dict | None = None) -> dict:
                 "layer": "below",
             }
         )
+        low, high = (
+            du.show("gas_bscf", volumetric[k], 0).replace(",", "") for k in ("low_bscf", "high_bscf")
+        )
         traces.append(
             {
                 "type": "scatter",
                 "mode": "markers",
-                "name": (f"volumetric {volumetric['low_bscf']:.0f}-{volumetric['high_bscf']:.0f} Bscf"),
-                "x": [volumetric["best_bscf"]],
+                "name": f"volumetric {low}-{high} {gas}",
+                "x": du.values("gas_bscf", [volumetric["best_bscf"]]),
                 "y": [0.0],
                 "marker": {"color": "#a8862b", "symbol": "line-ns-open", "size": 16, "line": {"width": 3}},
-                "hovertemplate": "volumetric best %{x:.1f} Bscf<extra></extra>",
+                "hovertemplate": f"volumetric best %{{x:.1f}} {gas}<extra></extra>",
             }
         )
-    y_title = "p/z (psia)"
+    y_title = f"p/z ({du.label('pz')})"
     if corrected:
-        y_title = "p/z and corrected (p/z)[1 − ce(pi − p)] (psia)"
+        y_title = f"p/z and corrected (p/z)[1 − ce(pi − p)] ({du.label('pz')})"
     return {
         "data": traces,
         "layout": {
-            "xaxis": _axis("Cumulative gas produced, Gp (Bscf)"),
+            "xaxis": _axis(f"Cumulative gas produced, Gp ({du.label('gas_bscf')})"),
             "yaxis": _axis(y_title),
             "shapes": shapes,
             "legend": {"orientation": "h", "y": -0.2, "traceorder": "normal"},
@@ -151,32 +169,35 @@ def _y_of(corrected: bool):
     return (lambda p, s: s["corrected_pz_psia"]) if corrected else (lambda p, s: p["pz_psia"])
 
 
-def _markers(name, pts, y_of, marker, corrected) -> dict:
+def _markers(name, pts, y_of, marker, corrected, du: DisplayUnits) -> dict:
     return {
         "type": "scatter",
         "mode": "markers",
         "name": name,
-        "x": [p["gp_bscf"] for p, _ in pts],
-        "y": [y_of(p, s) for p, s in pts],
+        "x": du.values("gas_bscf", [p["gp_bscf"] for p, _ in pts]),
+        "y": du.values("pz", [y_of(p, s) for p, s in pts]),
         "marker": marker,
-        "text": [_hover(p, s, corrected) for p, s in pts],
-        "hovertemplate": "%{text}<br>Gp %{x:.2f} Bscf<extra></extra>",
+        "text": [_hover(p, s, corrected, du) for p, s in pts],
+        "customdata": [p.get("survey_id") for p, _ in pts],
+        "hovertemplate": "%{text}<br>Gp %{x:.2f} " + short_unit(du, "gas_bscf") + "<extra></extra>",
     }
 
 
-def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
+def _line_traces(pz: dict, prepared: dict, corrected: bool, du: DisplayUnits) -> list[dict]:
     giip, intercept = pz["giip_bscf"], pz["intercept_psia"]
+    gas, pzu = short_unit(du, "gas_bscf"), short_unit(du, "pz")
     band = pz["band"]
     # p/z cannot go below zero: the band is drawn clipped there (the data keep the full band)
-    low = [max(v, 0.0) for v in band["low_psia"]]
-    high = [max(v, 0.0) for v in band["high_psia"]]
+    low = du.values("pz", [max(v, 0.0) for v in band["low_psia"]])
+    high = du.values("pz", [max(v, 0.0) for v in band["high_psia"]])
+    band_x = du.values("gas_bscf", band["gp_bscf"])
     level = f"{100 * band['level']:.0f} %"
     traces = [
         {
             "type": "scatter",
             "mode": "lines",
             "name": f"{level} band of the line",
-            "x": band["gp_bscf"],
+            "x": band_x,
             "y": low,
             "line": {"width": 0},
             "showlegend": False,
@@ -186,7 +207,7 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
             "type": "scatter",
             "mode": "lines",
             "name": f"{level} confidence band of the line",
-            "x": band["gp_bscf"],
+            "x": band_x,
             "y": high,
             "line": {"width": 0},
             "fill": "tonexty",
@@ -196,33 +217,35 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
         {
             "type": "scatter",
             "mode": "lines",
-            "name": f"fitted line, GIIP {giip:,.1f} Bscf" + (" (corrected)" if corrected else ""),
-            "x": [0.0, giip],
-            "y": [intercept, 0.0],
+            "name": f"fitted line, GIIP {_num(du, 'gas_bscf', giip)}" + (" (corrected)" if corrected else ""),
+            "x": du.values("gas_bscf", [0.0, giip]),
+            "y": du.values("pz", [intercept, 0.0]),
             "line": {"color": LINE_COLOUR, "width": 2},
-            "hovertemplate": "%{x:.1f} Bscf, %{y:.0f} psia<extra>fit</extra>",
+            "hovertemplate": f"%{{x:.1f}} {gas}, %{{y:.0f}} {pzu}<extra>fit</extra>",
         },
     ]
     boot = (pz.get("giip_range_bscf") or {}).get("bootstrap")
     if boot and boot.get("p90") is not None and boot.get("p10") is not None:
+        g, p90, p10 = du.values("gas_bscf", [giip, boot["p90"], boot["p10"]])
         traces.append(
             {
                 "type": "scatter",
                 "mode": "markers",
-                "name": f"GIIP P90-P10 {boot['p90']:,.1f}-{boot['p10']:,.1f} Bscf",
-                "x": [giip],
+                "name": "GIIP P90-P10 "
+                + f"{du.show('gas_bscf', boot['p90'])}-{du.show('gas_bscf', boot['p10'])} {gas}",
+                "x": [g],
                 "y": [0.0],
                 "marker": {"color": LINE_COLOUR, "symbol": "diamond", "size": 9},
                 "error_x": {
                     "type": "data",
                     "symmetric": False,
-                    "array": [boot["p10"] - giip],
-                    "arrayminus": [giip - boot["p90"]],
+                    "array": [p10 - g],
+                    "arrayminus": [g - p90],
                     "color": LINE_COLOUR,
                     "thickness": 2,
                     "width": 6,
                 },
-                "hovertemplate": "GIIP %{x:.1f} Bscf<extra>bootstrap P90-P10</extra>",
+                "hovertemplate": f"GIIP %{{x:.1f}} {gas}<extra>bootstrap P90-P10</extra>",
             }
         )
     eur = pz.get("eur_bscf")
@@ -231,12 +254,23 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool) -> list[dict]:
         traces.append(
             {
                 "type": "scatter",
+                "mode": "lines",
+                "name": f"abandonment p/z {_num(du, 'pz', pz_a, 0)}",
+                "x": du.values("gas_bscf", [0.0, eur]),
+                "y": du.values("pz", [pz_a, pz_a]),
+                "line": {"color": ABANDON_COLOUR, "width": 1, "dash": "dot"},
+                "hoverinfo": "skip",
+            }
+        )
+        traces.append(
+            {
+                "type": "scatter",
                 "mode": "markers",
-                "name": f"abandonment, EUR {eur:,.1f} Bscf",
-                "x": [eur],
-                "y": [pz_a],
+                "name": f"abandonment, EUR {_num(du, 'gas_bscf', eur)}",
+                "x": du.values("gas_bscf", [eur]),
+                "y": du.values("pz", [pz_a]),
                 "marker": {"color": ABANDON_COLOUR, "symbol": "star", "size": 13},
-                "hovertemplate": "EUR %{x:.1f} Bscf at p/z %{y:.0f} psia<extra></extra>",
+                "hovertemplate": f"EUR %{{x:.1f}} {gas} at p/z %{{y:.0f}} {pzu}<extra></extra>",
             }
         )
     return traces
@@ -266,21 +300,22 @@ def _layout(x_title: str, y_title: str) -> dict:
     }
 
 
-def model_fits_figure(diagnosis: dict) -> dict:
+def model_fits_figure(diagnosis: dict, du: DisplayUnits = OILFIELD) -> dict:
     """Observed p/z of the surveys every model was fitted to, and each model's fitted p/z,
     against cumulative gas (one line per model, in the comparison's rank order)."""
     gp = diagnosis.get("gp_bscf") or []
     pz = diagnosis.get("pz_psia") or []
     order = sorted(range(len(gp)), key=lambda i: gp[i])
+    gas, pzu = short_unit(du, "gas_bscf"), short_unit(du, "pz")
     traces = [
         {
             "type": "scatter",
             "mode": "markers",
             "name": "surveys used by every model",
-            "x": [gp[i] for i in order],
-            "y": [pz[i] for i in order],
+            "x": du.values("gas_bscf", [gp[i] for i in order]),
+            "y": du.values("pz", [pz[i] for i in order]),
             "marker": {"color": OBSERVED_COLOUR, "symbol": "circle-open", "size": 8},
-            "hovertemplate": "%{x:.2f} Bscf, p/z %{y:.0f} psia<extra>survey</extra>",
+            "hovertemplate": f"%{{x:.2f}} {gas}, p/z %{{y:.0f}} {pzu}<extra>survey</extra>",
         }
     ]
     fits = {m["name"]: m for m in diagnosis.get("models") or []}
@@ -294,7 +329,7 @@ def model_fits_figure(diagnosis: dict) -> dict:
             continue
         colour = MODEL_COLOURS.get(name, AQUIFER_COLOUR if name.startswith("aquifer_") else LINE_COLOUR)
         giip = m.get("giip_bscf")
-        title = m["title"] + (f", GIIP {giip:,.1f} Bscf" if giip is not None else "")
+        title = m["title"] + (f", GIIP {_num(du, 'gas_bscf', giip)}" if giip is not None else "")
         # A multi-tank model predicts each compartment's own p/z: one line per compartment.
         split = name in ("two_tank", "multi_tank") and len(groups) > 1
         for group in groups if split else [None]:
@@ -304,19 +339,21 @@ def model_fits_figure(diagnosis: dict) -> dict:
                     "type": "scatter",
                     "mode": "lines",
                     "name": title + (f" ({group})" if split else ""),
-                    "x": [gp[i] for i in idx],
-                    "y": [m["fitted_pz_psia"][i] for i in idx],
+                    "x": du.values("gas_bscf", [gp[i] for i in idx]),
+                    "y": du.values("pz", [m["fitted_pz_psia"][i] for i in idx]),
                     "line": {"color": colour, "width": 2, "dash": dashes[k % len(dashes)]},
-                    "hovertemplate": "%{x:.2f} Bscf, %{y:.0f} psia<extra>" + name + "</extra>",
+                    "hovertemplate": f"%{{x:.2f}} {gas}, %{{y:.0f}} {pzu}<extra>{name}</extra>",
                 }
             )
-    return {"data": traces, "layout": _layout("Cumulative gas produced, Gp (Bscf)", "p/z (psia)")}
+    x_title = f"Cumulative gas produced, Gp ({du.label('gas_bscf')})"
+    return {"data": traces, "layout": _layout(x_title, f"p/z ({du.label('pz')})")}
 
 
-def cole_figure(plots: list[dict]) -> dict:
+def cole_figure(plots: list[dict], du: DisplayUnits = OILFIELD) -> dict:
     """Cole plot: F/Eg (and the modified F/(Eg + Efw) when given) against Gp, the points
     used for the trend, and the fitted trend line with its direction and significance."""
     traces = []
+    gas = short_unit(du, "gas_bscf")
     for plot in plots:
         modified = bool(plot.get("modified"))
         label = "F/(Eg+Efw)" if modified else "F/Eg"
@@ -336,10 +373,10 @@ def cole_figure(plots: list[dict]) -> dict:
                         "type": "scatter",
                         "mode": "markers",
                         "name": name,
-                        "x": [gp[i] for i in idx],
-                        "y": [ratio[i] for i in idx],
+                        "x": du.values("gas_bscf", [gp[i] for i in idx]),
+                        "y": du.values("gas_bscf", [ratio[i] for i in idx]),
                         "marker": {"color": colour, "symbol": symbol, "size": 8},
-                        "hovertemplate": "%{x:.2f} Bscf, %{y:.1f} Bscf<extra>" + label + "</extra>",
+                        "hovertemplate": f"%{{x:.2f}} {gas}, %{{y:.1f}} {gas}<extra>{label}</extra>",
                     }
                 )
         trend = plot.get("trend") or {}
@@ -353,10 +390,13 @@ def cole_figure(plots: list[dict]) -> dict:
                     "mode": "lines",
                     "name": f"{label} trend: {trend.get('direction', '')}"
                     + (f" (p = {p:.2g})" if p is not None else ""),
-                    "x": [x0, x1],
-                    "y": [trend["intercept_bscf"] + trend["slope"] * x for x in (x0, x1)],
+                    "x": du.values("gas_bscf", [x0, x1]),
+                    "y": du.values(
+                        "gas_bscf", [trend["intercept_bscf"] + trend["slope"] * x for x in (x0, x1)]
+                    ),
                     "line": {"color": colour, "width": 2, "dash": "dash"},
                     "hoverinfo": "skip",
                 }
             )
-    return {"data": traces, "layout": _layout("Cumulative gas produced, Gp (Bscf)", "F/Eg (Bscf)")}
+    x_title = f"Cumulative gas produced, Gp ({du.label('gas_bscf')})"
+    return {"data": traces, "layout": _layout(x_title, f"F/Eg ({du.label('gas_bscf')})")}

@@ -3,16 +3,13 @@ service, render plain data."""
 
 from __future__ import annotations
 
-import dataclasses
-
 from fastapi import APIRouter, HTTPException, Request
 from fastapi.responses import HTMLResponse
 
-from ..services.audit import field_events
-from ..services.portfolio import field_detail
 from .auth import Reader
-from .charts import cole_figure, model_fits_figure, pz_figure
 from .deps import SessionDep
+from .display import units_for_request
+from .field_context import field_context, flash_message
 
 router = APIRouter(include_in_schema=False)
 
@@ -27,21 +24,16 @@ def render(request: Request, template: str, context: dict, status_code: int = 20
 
 
 @router.get("/fields/{field_id}", response_class=HTMLResponse, name="field_page")
-def field_page(request: Request, field_id: int, session: SessionDep, user: Reader):
-    detail = field_detail(session, field_id)
-    if detail is None:
+def field_page(
+    request: Request,
+    field_id: int,
+    session: SessionDep,
+    user: Reader,
+    changed: int | None = None,
+    noted: int | None = None,
+):
+    flash = flash_message(session, field_id, changed) if changed else ("Note added." if noted else "")
+    context = field_context(session, field_id, units_for_request(request), flash=flash)
+    if context is None:
         raise HTTPException(status_code=404, detail="no such field")
-    vol = dataclasses.asdict(detail.summary.volumetric) if detail.summary.volumetric else None
-    figure = pz_figure(detail.detail, vol)
-    dg = detail.detail.get("diagnosis")
-    cole = (dg or {}).get("cole_plots")
-    context = {
-        "f": detail,
-        "pz_figure": figure,
-        "dg": dg,
-        "model_fits_figure": model_fits_figure(dg) if dg else None,
-        "cole_figure": cole_figure(cole) if cole else None,
-        "title": detail.summary.name,
-        "audit_events": field_events(session, field_id),
-    }
     return render(request, "field.html", context)

@@ -97,6 +97,56 @@ class WellRead(Schema):
     gauge_reference_depth_ft: float | None
 
 
+class HistoryRead(Schema):
+    """One stored estimate of a field (oldest first in a list), with what triggered it."""
+
+    estimate_id: int
+    computed_at: UtcDatetime
+    status: str
+    method: str
+    giip_low_bscf: float | None
+    giip_best_bscf: float | None
+    giip_high_bscf: float | None
+    eur_bscf: float | None
+    engine_version: str
+    trigger: str
+
+
+class NoteRead(Schema):
+    id: int
+    author: str
+    author_id: int | None
+    created_at: UtcDatetime
+    body: str
+    survey_id: int | None
+    estimate_id: int | None
+
+
+class ChoicesRead(Schema):
+    """A field's abandonment pressure and analysis choices (stored units)."""
+
+    abandonment_pressure_psia: float
+    z_method: str
+    datum_correction: bool
+    condensate_correction: bool
+    use_lab_table: bool
+    anchor_initial: bool
+    overpressure_mode: str
+    effective_compressibility_per_psi: float | None
+    aquifer_model: str
+
+
+class SurveyRead(Schema):
+    id: int
+    well: str
+    survey_date: dt.date
+    pressure_psia: float
+    gauge_depth_ft: float
+    quality: str
+    excluded: bool
+    exclusion_reason: str | None
+
+
 class FieldRead(Schema):
     summary: PortfolioRowRead
     datum_depth_ft: float
@@ -106,6 +156,11 @@ class FieldRead(Schema):
     description: str
     wells: list[WellRead]
     detail: dict[str, Any]
+    # what the field page shows besides the estimate (added later; old clients ignore them)
+    choices: ChoicesRead | None = None
+    surveys: list[SurveyRead] = []
+    history: list[HistoryRead] = []
+    notes: list[NoteRead] = []
 
 
 class HealthRead(BaseModel):

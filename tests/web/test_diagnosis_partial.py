@@ -8,6 +8,7 @@ from server.engine.diagnosis import diagnose_field
 from server.engine.prepare import prepare
 from server.services.serialize import to_jsonable
 from server.web.charts import cole_figure, model_fits_figure
+from server.web.display import DisplayUnits
 from server.web.templating import make_templates
 from tests.engine.cases import demo_field_inputs
 
@@ -20,7 +21,9 @@ def _stored(name):
 def _render(dg, cole=None):
     env = make_templates().env
     fig = model_fits_figure(dg) if dg else None
-    return env.get_template("_diagnosis.html").render(dg=dg, model_fits_figure=fig, cole_figure=cole)
+    return env.get_template("_diagnosis.html").render(
+        dg=dg, model_fits_figure=fig, cole_figure=cole, du=DisplayUnits("oilfield")
+    )
 
 
 def test_compartmented_field_shows_its_flag_ranked_models_and_wells():

@@ -222,12 +222,24 @@ class VolumetricEstimate(Base):
     field: Mapped[Field] = relationship(back_populates="volumetrics")
 
 
+NOTE_MAX_CHARS = 4000  # a note is a paragraph or two; longer belongs in a report
+
+
 class FieldNote(Base):
-    """An interpretation note written by the team on a field."""
+    """An interpretation note written by the team on a field (plain text, shown escaped).
+
+    The author's name is kept beside the id so a note still says who wrote it after the
+    account is deleted; a note may point at one survey or one estimate it discusses."""
 
     __tablename__ = "field_note"
+    __table_args__ = (
+        CheckConstraint(f"length(body) >= 1 AND length(body) <= {NOTE_MAX_CHARS}", name="body_length"),
+    )
     id: Mapped[int] = mapped_column(primary_key=True)
     field_id: Mapped[int] = mapped_column(ForeignKey("field.id", ondelete="CASCADE"), index=True)
     author_id: Mapped[int | None] = mapped_column(ForeignKey("user_account.id", ondelete="SET NULL"))
+    author_username: Mapped[str] = mapped_column(String(120), default="", server_default="")
     body: Mapped[str] = mapped_column(Text)
+    survey_id: Mapped[int | None] = mapped_column(ForeignKey("pressure_survey.id", ondelete="SET NULL"))
+    estimate_id: Mapped[int | None] = mapped_column(ForeignKey("estimate.id", ondelete="SET NULL"))
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
