@@ -6,6 +6,7 @@ figure dicts, in the display units ``du``."""
 from __future__ import annotations
 
 import calendar
+import datetime as dt
 from collections import defaultdict
 
 from .charts import (
@@ -161,17 +162,20 @@ def production_figure(series, du: DisplayUnits = OILFIELD) -> dict:
             "hovertemplate": f"%{{x|%Y-%m}}: %{{y:,.2f}} {cum_u}<extra>cumulative</extra>",
         }
     )
-    layout = _layout(f"Gas rate ({du.label('rate_mmscf_per_day')})")
+    layout = _layout(
+        f"Gas rate<br>{du.label('rate_mmscf_per_day')}", margin={"l": 80, "r": 80, "t": 20, "b": 60}
+    )
     layout["yaxis"]["domain"] = [0.42, 1.0]
+    layout["xaxis"]["anchor"] = "y3"  # one date axis, under the lower panel
     layout["yaxis2"] = {
-        "title": {"text": f"Condensate, water ({du.label('liquid_stb')} per day)"},
+        "title": {"text": f"Condensate, water<br>{du.label('liquid_stb')} per day"},
         "overlaying": "y",
         "side": "right",
         "rangemode": "tozero",
         "showgrid": False,
     }
     layout["yaxis3"] = {
-        "title": {"text": f"Cumulative gas ({du.label('gas_bscf')})"},
+        "title": {"text": f"Cumulative gas<br>{du.label('gas_bscf')}"},
         "domain": [0.0, 0.32],
         "anchor": "x",
         "rangemode": "tozero",
@@ -234,4 +238,11 @@ def history_figure(history, du: DisplayUnits = OILFIELD) -> dict:
         )
     layout = _layout(f"Dynamic GIIP and EUR ({du.label('gas_bscf')})")
     layout["xaxis"]["title"]["text"] = "Computed (UTC)"
+    if ok and (ok[-1].computed_at - ok[0].computed_at) < dt.timedelta(hours=1):
+        # estimates minutes apart: show the day around them, not a millisecond axis
+        mid = ok[0].computed_at
+        layout["xaxis"]["range"] = [
+            (mid - dt.timedelta(hours=12)).strftime("%Y-%m-%d %H:%M:%S"),
+            (mid + dt.timedelta(hours=12)).strftime("%Y-%m-%d %H:%M:%S"),
+        ]
     return {"data": traces, "layout": layout}

@@ -73,7 +73,7 @@ def test_production_rates_per_calendar_day_and_cumulative_gas():
     assert not any(k.startswith("water") for k in t)  # no water produced: no trace
     cum = next(v for k, v in t.items() if k.startswith("cumulative"))
     assert cum["y"] == pytest.approx([0.62, 1.18, 1.18]) and cum["yaxis"] == "y3"
-    assert fig["layout"]["yaxis3"]["title"]["text"] == "Cumulative gas (Bscf (60 °F, 14.696 psia))"
+    assert fig["layout"]["yaxis3"]["title"]["text"] == "Cumulative gas<br>Bscf (60 °F, 14.696 psia)"
     si = _by_name(production_figure(series, SI))
     gas_si = next(v for k, v in si.items() if k.startswith("gas rate"))
     assert gas_si["y"][0] == pytest.approx(20.0e6 * M3_ISO_PER_SCF / 1e3, rel=1e-5)  # 10^3 m3/d
