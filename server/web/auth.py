@@ -236,7 +236,9 @@ UserAdmin = Annotated[Principal, Require(Permission.MANAGE_USERS)]
 SettingsAdmin = Annotated[Principal, Require(Permission.MANAGE_SETTINGS)]
 
 
-def optional_principal(request: Request, session: SessionDep) -> Principal | None:
+def optional_principal(
+    request: Request, session: SessionDep
+) -> Principal | None:
     """For public pages that look different when someone is logged in (the login page)."""
     try:
         return authenticate_request(request, session)

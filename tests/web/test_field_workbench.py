@@ -214,8 +214,9 @@ def test_si_display_on_the_whole_page_and_abandonment_entered_in_kpa(db, client,
     text = text_of(page)
     est = latest(db, fid)
     # the diagnosis quotes the engine's own statements (stored in oilfield units); the rest is SI
-    start, end = page.index('<section aria-labelledby="diag-h"'), page.index('id="estimate-method"')
-    ours = text_of(page[:start] + page[end:])
+    main = page[page.index("<main") : page.index("</main>")]  # the header's unit switch names both
+    start, end = main.index('<section aria-labelledby="diag-h"'), main.index('id="estimate-method"')
+    ours = text_of(main[:start] + main[end:])
     assert "10⁶ m³ (15 °C, 101.325 kPa)" in ours and "kPa" in ours
     for unit in ("psia", "Bscf", "°F", " ft ", "stb"):
         assert unit not in ours, unit
@@ -266,3 +267,15 @@ def test_a_form_without_the_session_token_is_refused(db, app, client, fid):
     target = surveys_of(db, fid)[0]
     r = bare.post(f"/fields/{fid}/surveys/{target.id}/exclusion", data={"action": "exclude", "reason": "x"})
     assert r.status_code == 403 and not surveys_of(db, fid)[0].excluded
+
+
+def test_a_users_own_unit_choice_applies_to_the_field_page(db, client, fid):
+    from server.db.models import User
+
+    with db.session() as s:
+        s.get(User, client.user_id).unit_system = "si"
+    page = client.get(f"/fields/{fid}").text
+    assert "Initial pressure 34,474 kPa" in text_of(page)
+    assert figure(page, "history-figure")["layout"]["yaxis"]["title"]["text"].endswith(
+        "(15 °C, 101.325 kPa))"
+    )
