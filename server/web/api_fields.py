@@ -15,7 +15,7 @@ from sqlalchemy.orm import Session
 
 from ..db.models.portfolio import NOTE_MAX_CHARS
 from ..services import field_notes, field_work
-from ..services.field_history import estimate_history, field_surveys
+from ..services.field_history import estimate_history, field_surveys, production_series
 from ..services.recompute import current_estimate
 from .auth import Analyst, NoteWriter, Reader
 from .deps import SessionDep, TeamDep
@@ -72,6 +72,7 @@ def field_extras(session: Session, field_id: int) -> dict:
         "surveys": [dataclasses.asdict(s) for s in field_surveys(session, field_id)],
         "history": [dataclasses.asdict(h) for h in estimate_history(session, field_id)],
         "notes": [dataclasses.asdict(n) for n in field_notes.field_notes(session, field_id)],
+        "production": dataclasses.asdict(production_series(session, field_id)),
     }
 
 

@@ -209,7 +209,9 @@ def add_note(
     try:
         note = field_notes.add_note(session, user.actor, field, body, survey_id=sid)
     except field_work.FieldWorkError as exc:
-        return _problem_page(request, session, field_id, exc.problems, {"body": body}, "note")
+        return _problem_page(
+            request, session, field_id, exc.problems, {"body": body, "survey_id": survey_id}, "note"
+        )
     session.commit()
     return RedirectResponse(f"/fields/{field_id}?noted={note.id}#note-{note.id}", status_code=303)
 

@@ -147,6 +147,15 @@ class SurveyRead(Schema):
     exclusion_reason: str | None
 
 
+class ProductionRead(Schema):
+    """The field's production per calendar month (``month`` is its first day)."""
+
+    month: list[dt.date]
+    gas_mscf: list[float]
+    condensate_stb: list[float]
+    water_stb: list[float]
+
+
 class FieldRead(Schema):
     summary: PortfolioRowRead
     datum_depth_ft: float
@@ -161,6 +170,7 @@ class FieldRead(Schema):
     surveys: list[SurveyRead] = []
     history: list[HistoryRead] = []
     notes: list[NoteRead] = []
+    production: ProductionRead | None = None
 
 
 class HealthRead(BaseModel):

@@ -14,18 +14,27 @@ from tests.web.fieldbench import fid, latest, surveys_of, text_of  # noqa: F401 
 
 def test_note_is_stored_escaped_audited_and_deletable_by_its_author(db, client, login_as, fid):
     body = "Late p/z bends upward <script>alert(1)</script> & W-1 watered out?"
-    r = client.post(f"/fields/{fid}/notes", data={"body": body}, follow_redirects=False)
+    sid = surveys_of(db, fid)[3].id
+    r = client.post(
+        f"/fields/{fid}/notes", data={"body": body, "survey_id": str(sid)}, follow_redirects=False
+    )
     assert r.status_code == 303
     page = client.get(r.headers["location"]).text
     with db.session() as s:
         note = s.execute(select(FieldNote)).scalar_one()
-        assert (note.body, note.author_username, note.field_id) == (body, "engineer", fid)
+        assert (note.body, note.author_username, note.field_id, note.survey_id) == (
+            body,
+            "engineer",
+            fid,
+            sid,
+        )
         nid = note.id
         ev = s.execute(select(AuditEvent).where(AuditEvent.entity_type == "field_note")).scalar_one()
         assert (ev.action, ev.entity_id, ev.field_id) == ("create", nid, fid)
     item = re.search(rf'<li id="note-{nid}" class="note">(.*?)</li>', page, re.S).group(1)
     assert "&lt;script&gt;alert(1)&lt;/script&gt; &amp; W-1" in item and "<script>alert" not in page
     assert "engineer" in item and "Delete" in item and 'id="flash"' in page
+    assert f'about survey <a href="#survey-{sid}">' in item
     # another engineer sees it but cannot delete it
     other = login_as("engineer", username="second-engineer")
     assert "Delete" not in re.search(
@@ -110,6 +119,8 @@ def test_api_twins_exclude_choices_history_and_notes(db, client, viewer_client, 
     assert full["summary"]["estimate"]["id"] == history[-1]["estimate_id"]  # the old keys are still there
     assert full["choices"]["abandonment_pressure_psia"] == 1500.0 and len(full["history"]) == 3
     assert [n["body"] for n in full["notes"]] == ["set aside: tool failure"]
+    prod = full["production"]
+    assert prod["month"][0] == "2010-01-01" and prod["gas_mscf"][0] == pytest.approx(20000.0 * 30.4375)
     excluded = [s for s in full["surveys"] if s["excluded"]]
     assert [(s["id"], s["exclusion_reason"]) for s in excluded] == [(target.id, "tool failure")]
     assert client.delete(f"/api/fields/{fid}/notes/{nid}").status_code == 204
