@@ -33,13 +33,21 @@ def estimate_history(session: Session, field_id: int, limit: int = 500) -> list[
     """The field's stored estimates, oldest first, each with what triggered it where known:
     the reason of the field's (or the portfolio's) recompute job that was running when the
     estimate was written."""
-    ests = (
-        session.execute(
-            select(Estimate).where(Estimate.field_id == field_id).order_by(Estimate.id.desc()).limit(limit)
-        )
-        .scalars()
-        .all()[::-1]
+    # only the summary columns: each row's stored detail is large
+    cols = (
+        Estimate.id,
+        Estimate.computed_at,
+        Estimate.status,
+        Estimate.method,
+        Estimate.giip_low_bscf,
+        Estimate.giip_best_bscf,
+        Estimate.giip_high_bscf,
+        Estimate.eur_bscf,
+        Estimate.engine_version,
     )
+    ests = session.execute(
+        select(*cols).where(Estimate.field_id == field_id).order_by(Estimate.id.desc()).limit(limit)
+    ).all()[::-1]
     runs = session.execute(
         select(Job.created_at, Job.finished_at, Job.reason)
         .where(
@@ -57,20 +65,7 @@ def estimate_history(session: Session, field_id: int, limit: int = 500) -> list[
         for created, finished, reason in runs:
             if created <= e.computed_at and (finished is None or e.computed_at <= finished):
                 trigger = reason
-        out.append(
-            HistoryRow(
-                e.id,
-                e.computed_at,
-                e.status,
-                e.method,
-                e.giip_low_bscf,
-                e.giip_best_bscf,
-                e.giip_high_bscf,
-                e.eur_bscf,
-                e.engine_version,
-                trigger,
-            )
-        )
+        out.append(HistoryRow(*e, trigger))
     return out
 
 
