@@ -24,6 +24,11 @@ def _axis(title: str) -> dict:
     return {"title": {"text": title}, "zeroline": True, "rangemode": "tozero", "gridcolor": "#e3e7eb"}
 
 
+def plain(text) -> str:
+    """User text (well names, reasons) for plotly labels, which read a few HTML tags: escaped."""
+    return str(text).replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+
+
 def short_unit(du: DisplayUnits, kind: str) -> str:
     """A unit label without its standard-conditions basis (for legends and hover text)."""
     return du.label(kind).split(" (")[0]
@@ -46,11 +51,12 @@ def _statuses(detail: dict) -> dict[int, dict]:
 
 
 def _hover(p: dict, s: dict, corrected: bool, du: DisplayUnits) -> str:
-    text = f"{p['well'] or 'survey'}, {date_from_days(p['t_days'])}<br>p/z {_num(du, 'pz', p['pz_psia'], 0)}"
+    where = f"{plain(p['well'] or 'survey')}, {date_from_days(p['t_days'])}"
+    text = f"{where}<br>p/z {_num(du, 'pz', p['pz_psia'], 0)}"
     if corrected:
         text += f", corrected {_num(du, 'pz', s['corrected_pz_psia'], 0)}"
     if s.get("reason"):
-        text += "<br>" + s["reason"]
+        text += "<br>" + plain(s["reason"])
     return text
 
 
@@ -93,7 +99,7 @@ def pz_figure(detail: dict, volumetric: dict | None = None, du: DisplayUnits = O
     for i, (well, pts) in enumerate(sorted(by_well.items())):
         marker = {"color": WELL_COLOURS[i % len(WELL_COLOURS)], "symbol": WELL_SYMBOLS[i % len(WELL_SYMBOLS)]}
         traces.append(
-            _markers(well, pts, _y_of(corrected), {**marker, "size": 8}, corrected, du),
+            _markers(plain(well), pts, _y_of(corrected), {**marker, "size": 8}, corrected, du),
         )
     labels = {"excluded": ("set aside by the engineer", "x-thin-open"), "outlier": ("outlier (rule)", "x")}
     for kind, pts in sorted(set_aside.items()):

@@ -16,6 +16,7 @@ from .charts import (
     SET_ASIDE_COLOUR,
     WELL_COLOURS,
     WELL_SYMBOLS,
+    plain,
     short_unit,
 )
 from .display import DisplayUnits
@@ -76,7 +77,7 @@ def pressure_time_figure(detail: dict, surveys=(), du: DisplayUnits = OILFIELD) 
             {
                 "type": "scatter",
                 "mode": "lines+markers",
-                "name": well,
+                "name": plain(well),
                 "x": [r[1] for r in pts],
                 "y": du.values("pressure", [r[2] for r in pts]),
                 "marker": {
@@ -85,7 +86,7 @@ def pressure_time_figure(detail: dict, surveys=(), du: DisplayUnits = OILFIELD) 
                     "size": 7,
                 },
                 "line": {"color": WELL_COLOURS[i % len(WELL_COLOURS)], "width": 1},
-                "hovertemplate": f"%{{x}}, %{{y:,.0f}} {unit}<extra>{well}</extra>",
+                "hovertemplate": f"%{{x}}, %{{y:,.0f}} {unit}<extra>{plain(well)}</extra>",
             }
         )
     if aside:
@@ -96,7 +97,7 @@ def pressure_time_figure(detail: dict, surveys=(), du: DisplayUnits = OILFIELD) 
                 "name": "set aside",
                 "x": [r[1] for r in aside],
                 "y": du.values("pressure", [r[2] for r in aside]),
-                "text": [f"{r[0]}: {r[3]}" for r in aside],
+                "text": [f"{plain(r[0])}: {plain(r[3])}" for r in aside],
                 "marker": {
                     "color": SET_ASIDE_COLOUR,
                     "symbol": "x-thin-open",
@@ -198,7 +199,7 @@ def history_figure(history, du: DisplayUnits = OILFIELD) -> dict:
     high = du.values(
         "gas_bscf", [h.giip_high_bscf if h.giip_high_bscf is not None else h.giip_best_bscf for h in ok]
     )
-    text = [f"estimate {h.estimate_id}" + (f"<br>{h.trigger}" if h.trigger else "") for h in ok]
+    text = [f"estimate {h.estimate_id}" + (f"<br>{plain(h.trigger)}" if h.trigger else "") for h in ok]
     traces = [
         {
             "type": "scatter",

@@ -46,13 +46,13 @@ def test_pressure_by_well_with_set_aside_surveys_and_their_reasons():
 def test_pressure_from_stored_surveys_when_there_is_no_estimate():
     surveys = [
         SurveyRow(1, "A-1", dt.date(2020, 1, 5), 4000.0, 9000.0, "good", False, None),
-        SurveyRow(2, "A-1", dt.date(2020, 7, 5), 3900.0, 9000.0, "good", True, "gauge drift"),
+        SurveyRow(2, "A-1", dt.date(2020, 7, 5), 3900.0, 9000.0, "good", True, "gauge <b>drift</b>"),
         SurveyRow(3, "A-2", dt.date(2020, 7, 9), 3950.0, 9000.0, "fair", False, None),
     ]
     fig = pressure_time_figure({}, surveys, SI)
     t = _by_name(fig)
     assert t["A-1"]["x"] == ["2020-01-05"] and t["A-2"]["y"] == [pytest.approx(3950.0 * KPA_PER_PSI)]
-    assert t["set aside"]["text"] == ["A-1: gauge drift"]
+    assert t["set aside"]["text"] == ["A-1: gauge &lt;b&gt;drift&lt;/b&gt;"]  # plotly reads tags: escaped
     assert fig["layout"]["yaxis"]["title"]["text"] == "Pressure at the gauge (kPa)"
 
 
