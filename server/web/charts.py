@@ -261,7 +261,7 @@ def _line_traces(pz: dict, prepared: dict, corrected: bool, du: DisplayUnits) ->
             {
                 "type": "scatter",
                 "mode": "lines",
-                "name": f"abandonment p/z {_num(du, 'pz', pz_a, 0)}",
+                "name": f"abandonment p/z{' (corrected)' if corrected else ''} {_num(du, 'pz', pz_a, 0)}",
                 "x": du.values("gas_bscf", [0.0, eur]),
                 "y": du.values("pz", [pz_a, pz_a]),
                 "line": {"color": ABANDON_COLOUR, "width": 1, "dash": "dot"},

@@ -65,6 +65,12 @@ def test_corrected_points_and_the_uncorrected_line_when_ce_applies():
     unc = next(v for k, v in t.items() if k.startswith("uncorrected line"))
     assert unc["x"] == [0.0, d["pz_uncorrected"]["giip_bscf"]] and unc["line"]["dash"] == "dash"
     assert any(k.endswith("(corrected)") for k in t)
+    # the abandonment level is the corrected p/z there, and the line meets it at EUR
+    level = next(v for k, v in t.items() if k.startswith("abandonment p/z (corrected)"))
+    assert level["y"] == [d["pz"]["abandonment_pz_psia"]] * 2 and level["x"][1] == d["pz"]["eur_bscf"]
+    fitted = next(v for k, v in t.items() if k.startswith("fitted line"))
+    (g, a) = (fitted["x"][1], fitted["y"][0])
+    assert a * (1 - d["pz"]["eur_bscf"] / g) == pytest.approx(d["pz"]["abandonment_pz_psia"], rel=1e-9)
 
 
 def test_refused_result_draws_the_points_only():
