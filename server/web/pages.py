@@ -29,10 +29,11 @@ def field_page(
     field_id: int,
     session: SessionDep,
     user: Reader,
-    changed: int | None = None,
-    noted: int | None = None,
+    changed: str = "",
+    noted: str = "",
 ):
-    flash = flash_message(session, field_id, changed) if changed else ("Note added." if noted else "")
+    audit_id = int(changed) if changed.isdigit() and len(changed) < 10 else None
+    flash = flash_message(session, field_id, audit_id) if audit_id else ("Note added." if noted else "")
     context = field_context(session, field_id, units_for_request(request), flash=flash)
     if context is None:
         raise HTTPException(status_code=404, detail="no such field")

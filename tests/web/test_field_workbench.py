@@ -58,6 +58,7 @@ def test_exclude_a_survey_changes_the_estimate_and_the_page_says_why(db, client,
     assert (
         f"Saved: set aside survey of W-1 on {target.survey_date.isoformat()}: gauge drift suspected" in text
     )
+    assert 'id="flash"' not in client.get(f"/fields/{fid}?changed=x1").text  # a bad link shows the page
     pz = figure(page, "pz-figure")
     aside = next(t for t in pz["data"] if t["name"] == "set aside by the engineer")
     assert aside["customdata"] == [target.id] and "gauge drift suspected" in aside["text"][0]
