@@ -50,7 +50,7 @@ class ChoicesUpdate(BaseModel):
     aquifer_model: str | None = None
 
 
-class ChangeRead(BaseModel):
+class FieldChangeRead(BaseModel):
     changed: list[str] = Field(description="what this request changed (empty: nothing to change)")
     summary: str
     audit_id: int | None
@@ -91,7 +91,7 @@ def _answer(request: Request, session: Session, field_id: int, outcome) -> dict:
 
 @router.put(
     "/{field_id}/surveys/{survey_id}/exclusion",
-    response_model=ChangeRead,
+    response_model=FieldChangeRead,
     responses=NOT_FOUND | REFUSED,
 )
 def put_exclusion(
@@ -121,7 +121,7 @@ def get_choices(field_id: FieldId, session: SessionDep, user: Reader):
     return field_work.current_choices(field_or_404(session, field_id))
 
 
-@router.patch("/{field_id}/choices", response_model=ChangeRead, responses=NOT_FOUND | REFUSED)
+@router.patch("/{field_id}/choices", response_model=FieldChangeRead, responses=NOT_FOUND | REFUSED)
 def patch_choices(
     request: Request,
     field_id: FieldId,

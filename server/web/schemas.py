@@ -147,7 +147,7 @@ class SurveyRead(Schema):
     exclusion_reason: str | None
 
 
-class ProductionRead(Schema):
+class FieldProductionRead(Schema):
     """The field's production per calendar month (``month`` is its first day)."""
 
     month: list[dt.date]
@@ -170,7 +170,7 @@ class FieldRead(Schema):
     surveys: list[SurveyRead] = []
     history: list[HistoryRead] = []
     notes: list[NoteRead] = []
-    production: ProductionRead | None = None
+    production: FieldProductionRead | None = None
 
 
 class HealthRead(BaseModel):

@@ -4,7 +4,7 @@ import threading
 
 from sqlalchemy import func, select
 
-from server.db.models import Estimate, Job
+from server.db.models import Estimate, Field, Job
 from server.services import jobs
 from tests.factories import add_volumetric_history, make_field
 
@@ -29,8 +29,14 @@ def test_run_now_runs_a_queued_job_in_the_callers_thread(db, session):
     assert jobs.drain(db) == 0
 
 
-def test_run_now_waits_for_the_worker_that_claimed_the_job(db, session):
-    job_id = _queued(session)
+def test_run_now_waits_for_the_worker_that_claimed_the_job(real_db):
+    """Two threads, so a real database (the rolled-back test connection is one connection)."""
+    db, _ = real_db
+    with db.session() as s:
+        f = s.execute(select(Field)).scalar_one()
+        add_volumetric_history(s, f)
+        (job,) = jobs.enqueue_field_recompute(s, [f.id], reason="test")
+        job_id = job.id
     with db.session() as s:
         assert jobs.claim_next(s, "worker-a").id == job_id
     assert jobs.run_now(db, job_id, wait_seconds=0.3) == "running"  # not ours to run; not done yet
@@ -38,6 +44,6 @@ def test_run_now_waits_for_the_worker_that_claimed_the_job(db, session):
     finishing.start()
     assert jobs.run_now(db, job_id, wait_seconds=30) == "done"
     finishing.join()
-    session.expire_all()
-    assert session.get(Job, job_id).claimed_by == "worker-a"
-    assert session.execute(select(func.count(Estimate.id))).scalar_one() == 1
+    with db.session() as s:
+        assert s.get(Job, job_id).claimed_by == "worker-a"
+        assert s.execute(select(func.count(Estimate.id))).scalar_one() == 1
