@@ -94,7 +94,8 @@ def test_exclusion_needs_a_reason_and_changes_nothing_without_one(db, client, fi
     assert r.status_code == 422
     problem = re.search(r'id="survey-problem">(.*?)</div>', r.text, re.S).group(1)
     assert f"Survey {target.id}" in problem and "give a reason for setting this survey aside" in problem
-    assert 'aria-invalid="true"' in r.text
+    # the keyboard lands on the field to correct
+    assert re.search(rf'id="reason-{target.id}"[^>]*aria-invalid="true"[^>]*autofocus', r.text)
     assert not surveys_of(db, fid)[2].excluded and latest(db, fid).id == n_est
     with db.session() as s:
         assert s.execute(select(func.count(AuditEvent.id))).scalar_one() == 0
