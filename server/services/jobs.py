@@ -19,6 +19,7 @@ import datetime as dt
 import logging
 import os
 import socket
+import time
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -229,8 +230,6 @@ def run_now(db: Database, job_id: int, *, wait_seconds: float = 30.0, worker: st
     result), or, if a worker has already claimed it, wait up to ``wait_seconds`` for it.
 
     Returns the job's status at the end ("done", "failed", or still "queued"/"running")."""
-    import time
-
     worker = worker or worker_name()
     with db.session() as session:
         write_first(session)
