@@ -32,8 +32,8 @@ import numpy as np
 
 from server.engine.analysis import analyse_field, analyse_prepared
 from server.engine.inputs import AnalysisChoices, FieldInputs
-from server.engine.prepare import prepare
-from server.engine.pvt import GasFluid
+from server.engine.prepare.points import prepare
+from server.engine.pvt.gas import GasFluid
 from server.synthetic.tank import TankSpec, simulate
 
 TARGET_MS = 50.0

@@ -23,11 +23,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from server.engine import aquifer_dimensionless  # noqa: E402
 from server.engine.analysis import analyse_prepared  # noqa: E402
-from server.engine.history_match import VEH_RED_GRID, fit_aquifer_models  # noqa: E402
-from server.engine.mbal import field_cole_plots  # noqa: E402
-from server.engine.prepare import prepare  # noqa: E402
+from server.engine.aquifer import dimensionless as aquifer_dimensionless  # noqa: E402
+from server.engine.aquifer.history_match import VEH_RED_GRID, fit_aquifer_models  # noqa: E402
+from server.engine.prepare.points import prepare  # noqa: E402
+from server.engine.tank.balance_terms import field_cole_plots  # noqa: E402
 from server.synthetic.aquifer import VehAquifer  # noqa: E402
 from server.synthetic.tank import FetkovichAquifer  # noqa: E402
 from tests.engine.aquifer_cases import synthetic_field  # noqa: E402

@@ -1,6 +1,6 @@
 """Benchmark: full diagnosis of one field with 20 years of monthly production and 40 surveys.
 
-Target (issue 4): under 0.5 s median on the 2-core machine. Three fields are timed (a
+Target (issue 17): under 0.1 s median on the 2-core machine (issue 4: 0.5 s). Three fields are timed (a
 volumetric tank, a tank with a hidden neighbour, an aquifer-supported tank), each made
 by the forward simulator. "Full" is what a recompute runs: ``analyse_field`` (prepare,
 the p/z estimate with its bootstrap, every model, the comparison and the flags). The
@@ -20,14 +20,14 @@ import numpy as np
 
 from server.engine.analysis import analyse_field
 from server.engine.inputs import FieldInputs
-from server.engine.prepare import prepare
-from server.engine.pvt import GasFluid
-from server.engine.pz import fit_pz_line
-from server.engine.volumetrics import volumetric_range
+from server.engine.prepare.points import prepare
+from server.engine.pvt.gas import GasFluid
+from server.engine.tank.pz_estimate import fit_pz_line
+from server.engine.volumetrics.estimate import volumetric_range
 from server.synthetic.tank import FetkovichAquifer, SecondTank, TankSpec, simulate
 
 MONTH = 30.4375
-TARGET_S = 0.5
+TARGET_S = 0.1  # issue 17 (issue 4 asked for 0.5 s)
 
 
 def field(spec: TankSpec, seed: int) -> FieldInputs:
@@ -62,12 +62,12 @@ def field(spec: TankSpec, seed: int) -> FieldInputs:
     )
 
 
-def timed(fn, repeats: int) -> list[float]:
+def timed(fn, repeats: int, clock=time.perf_counter) -> list[float]:
     out = []
     for _ in range(repeats):
-        t0 = time.perf_counter()
+        t0 = clock()
         fn()
-        out.append(time.perf_counter() - t0)
+        out.append(clock() - t0)
     return out
 
 
@@ -88,7 +88,7 @@ def main() -> int:
         ),
     }
     print(f"diagnosis of a field with 240 months and 40 surveys, median of {args.repeats} runs")
-    print(f"{'case':22s} {'baseline s':>11s} {'full s':>12s} {'ratio':>7s}  models")
+    print(f"{'case':22s} {'baseline s':>11s} {'full s':>12s} {'ratio':>7s} {'full cpu s':>11s}  models")
     medians = []
     for k, (name, spec) in enumerate(cases.items()):
         inputs = field(spec, seed=k)
@@ -103,10 +103,12 @@ def main() -> int:
         full()  # warm caches (imports, the potential table's code path)
         base = statistics.median(timed(baseline, args.repeats))
         diag = statistics.median(timed(full, args.repeats))
+        # Processor time of this process: less disturbed than wall time on a shared machine.
+        cpu = statistics.median(timed(full, args.repeats, time.process_time))
         d = analyse_field(inputs).diagnosis
         medians.append(diag)
         models = ", ".join(f.name for f in d.models) + (f"; skipped {len(d.skipped)}" if d.skipped else "")
-        print(f"{name:22s} {base:11.4f} {diag:12.4f} {diag / base:7.1f}  {models}")
+        print(f"{name:22s} {base:11.4f} {diag:12.4f} {diag / base:7.1f} {cpu:11.4f}  {models}")
     worst = max(medians)
     verdict = "met" if worst < TARGET_S else "NOT met"
     print(f"worst median {worst:.3f} s against the target {TARGET_S} s: {verdict}")

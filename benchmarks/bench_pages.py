@@ -16,6 +16,8 @@ all three alike.
 Run: .venv/bin/python -m benchmarks.bench_pages [--fields 500] [--repeat 30]
      [--postgresql]  (a temporary PostgreSQL database instead of a temporary SQLite file)
      [--profile]     (cProfile of one portfolio render, top 20 by cumulative time)
+     .venv/bin/python -m benchmarks.bench_pages --visits [--rounds 5] [--mbit 20] [--latency-ms 30]
+                     (first and second visit of the 20-year field's page in Chromium: page_visits.py)
 """
 
 from __future__ import annotations
@@ -40,10 +42,11 @@ from server.db.base import Base, utcnow  # noqa: E402
 from server.db.migrate import upgrade  # noqa: E402
 from server.db.models import Field, User  # noqa: E402
 from server.db.session import Database  # noqa: E402
-from server.services import accounts, credentials, jobs  # noqa: E402
+from server.services.access import accounts, credentials
 from server.services.audit import Actor  # noqa: E402
 from server.services.demo import PORTFOLIO, DemoWell, load_demo  # noqa: E402
-from server.services.portfolio import _total  # noqa: E402
+from server.services.jobs import runner  # noqa: E402
+from server.services.portfolio.rows import _total  # noqa: E402
 
 portfolio_totals_cache_clear = _total.cache_clear
 from server.settings import Settings  # noqa: E402
@@ -106,7 +109,7 @@ def build(url: str, n_fields: int) -> tuple[int, str]:
     t0 = time.perf_counter()
     with db.session() as s:
         load_demo(s, PORTFOLIO + (long_field(),))
-    jobs.drain(db)
+    runner.drain(db)
     print(f"demo fields and the 20-year field loaded and recomputed in {time.perf_counter() - t0:.1f} s")
     t0 = time.perf_counter()
     total = clone_fields(db, n_fields)
@@ -143,8 +146,8 @@ def profile_portfolio(app) -> None:
 
     from starlette.requests import Request
 
-    from server.services.portfolio_view import PortfolioQuery
-    from server.web.portfolio_pages import portfolio_page
+    from server.services.portfolio.view import PortfolioQuery
+    from server.web.pages.portfolio import portfolio_page
 
     scope = {
         "type": "http",
@@ -200,8 +203,22 @@ def main() -> int:
     ap.add_argument("--repeat", type=int, default=30)
     ap.add_argument("--postgresql", action="store_true", help="use a temporary PostgreSQL database")
     ap.add_argument("--profile", action="store_true")
+    ap.add_argument("--visits", action="store_true", help="first and second visits in Chromium")
+    ap.add_argument("--rounds", type=int, default=5)
+    ap.add_argument("--mbit", type=float, default=20.0)
+    ap.add_argument("--latency-ms", type=float, default=30.0)
     args = ap.parse_args()
     url, drop = _temporary_database(sqlite=not args.postgresql)
+    if args.visits:
+        from benchmarks.page_visits import run_visits
+
+        try:
+            long_id, token = build(url, len(PORTFOLIO) + 1)  # the demo and the 20-year field
+            link = {"mbit": args.mbit, "latency_ms": args.latency_ms}
+            ok = run_visits(url, token, long_id, rounds=args.rounds, **link)
+        finally:
+            drop()
+        return 0 if ok else 1
     try:
         long_id, token = build(url, args.fields)
         settings = Settings(environment="test", secret_key="p" * 40, database_url=url, job_runner="external")
@@ -212,7 +229,7 @@ def main() -> int:
             t0 = time.perf_counter()
             rows = client.get("/").text.count("<tr data-field-id=")
             first_ms = 1e3 * (time.perf_counter() - t0)
-            print(f"portfolio page lists {rows} fields (first request {first_ms:.0f} ms)")
+            print(f"portfolio page lists {rows} fields on its first page (first request {first_ms:.0f} ms)")
             first = {k: _time(client, p) for k, p in paths.items()}  # cold: first request of each
             for _ in range(3):
                 for p in paths.values():

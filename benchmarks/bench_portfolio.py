@@ -3,8 +3,9 @@
 Target (issue 4): under 60 s with two worker processes. The portfolio is the demo's
 twelve field stories repeated with varied size, rate and noise (200 fields, about 4 years
 to 17 years of monthly production each), loaded into a fresh database. Each worker
-process opens its own connection and recomputes its share of the fields through the real
-service path (load rows, analyse, store the estimate). The baseline, measured in the same
+process opens its own connection and runs queued field recompute jobs through the real
+job path (claim, load rows, analyse, store the estimate, mark the job done), as
+`tankbook worker` does, until the queue is empty. The baseline, measured in the same
 run, is the serial time per field (load and analyse, nothing stored) on ten fields; the
 report gives the parallel wall time, the speed-up against 200 serial fields, and the
 target verdict.
@@ -18,6 +19,7 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import shutil
 import tempfile
 import time
 import uuid
@@ -31,7 +33,9 @@ from server.db.models import Estimate, Field, Job
 from server.db.session import Database
 from server.engine.analysis import analyse_field
 from server.services.demo import PORTFOLIO, load_demo
-from server.services.recompute import load_field_inputs, recompute_field
+from server.services.jobs import queue as jobs
+from server.services.jobs import runner
+from server.services.jobs.recompute import load_field_inputs
 
 TARGET_S = 60.0
 PG_ADMIN = "postgresql+psycopg://postgres@127.0.0.1:5432/postgres"
@@ -63,19 +67,24 @@ def variants(n: int, seed: int = 7):
     return tuple(out)
 
 
-def _recompute_share(url: str, ids: list[int]) -> int:
+def _work(url: str, name: str) -> int:
+    """One worker process: run queued jobs until none is left (``runner.drain``).
+
+    Through the job runner, not by calling the recompute directly: on SQLite a recompute's
+    transaction must take the write lock before it reads (``jobs.write_first``, which the
+    runner does), or it fails at once with "database is locked" when the other worker
+    committed meanwhile (the benchmark failed so, 2 runs of 2, before issue 17)."""
     db = Database(url)
-    for fid in ids:
-        with db.session() as s:
-            recompute_field(s, s.get(Field, fid))
-    db.dispose()
-    return len(ids)
+    try:
+        return runner.drain(db, worker=name)
+    finally:
+        db.dispose()
 
 
 def _temporary_database(sqlite: bool):
-    if sqlite:
+    if sqlite:  # the folder (database, journal, WAL) is removed afterwards: 55-220 MB a run
         path = tempfile.mkdtemp(prefix="tb_bench_")
-        return f"sqlite:///{path}/portfolio.sqlite3", lambda: None
+        return f"sqlite:///{path}/portfolio.sqlite3", lambda: shutil.rmtree(path, ignore_errors=True)
     name = f"tb_bench_{uuid.uuid4().hex[:10]}"
     admin = sa.create_engine(PG_ADMIN, isolation_level="AUTOCOMMIT")
     with admin.connect() as c:
@@ -104,7 +113,7 @@ def main() -> int:
         t0 = time.perf_counter()
         with db.session() as s:
             ids = load_demo(s, variants(args.fields))
-            s.execute(sa.delete(Job))  # the benchmark runs the recomputes itself
+            s.execute(sa.delete(Job))  # the demo's own jobs: the benchmark queues its own below
         print(f"loaded {len(ids)} fields in {time.perf_counter() - t0:.1f} s ({url.split('://')[0]})")
         t0 = time.perf_counter()
         sample = ids[:10]
@@ -112,25 +121,40 @@ def main() -> int:
             with db.session() as s:
                 analyse_field(load_field_inputs(s, s.get(Field, fid)))
         serial_per_field = (time.perf_counter() - t0) / len(sample)
-        shares = [ids[k :: args.workers] for k in range(args.workers)]
+        with db.session() as s:
+            jobs.enqueue_field_recompute(s, ids, reason="benchmark")
+        names = [f"bench-worker-{k + 1}" for k in range(args.workers)]
         t0 = time.perf_counter()
         with ProcessPoolExecutor(args.workers) as pool:
-            done = sum(pool.map(_recompute_share, [url] * args.workers, shares))
+            done = sum(pool.map(_work, [url] * args.workers, names))
         wall = time.perf_counter() - t0
         with db.session() as s:
             stored = s.execute(sa.select(sa.func.count(Estimate.id))).scalar_one()
             ok = s.execute(sa.select(sa.func.count(Estimate.id)).where(Estimate.status == "ok")).scalar_one()
+            finished = s.execute(sa.select(sa.func.count(Job.id)).where(Job.status == "done")).scalar_one()
         db.dispose()
     finally:
         drop()
     projected = serial_per_field * len(ids)
     n = len(ids)
     print(f"baseline: {serial_per_field:.3f} s per field serially (10 fields) -> {projected:.1f} s for {n}")
-    print(f"recomputed {done} fields, {args.workers} workers: {wall:.1f} s; {stored} estimates ({ok} ok)")
+    print(
+        f"ran {done} jobs ({finished} done), {args.workers} workers: {wall:.1f} s; "
+        f"{stored} estimates ({ok} ok)"
+    )
     print(f"speed-up against serial: {projected / wall:.2f}x; ratio wall/serial {wall / projected:.2f}")
+    complete = finished == n and stored >= n
+    if not complete:
+        print("NOT every field was recomputed")
+        return 1
+    if url.startswith("sqlite"):
+        # One writer at a time: a job holds SQLite's write lock from its first statement to
+        # its commit (jobs.write_first), so workers take turns; the target is PostgreSQL's.
+        print(f"SQLite: every job ran to the end; the {TARGET_S:.0f} s target applies to PostgreSQL")
+        return 0
     verdict = "met" if wall < TARGET_S else "NOT met"
     print(f"target {TARGET_S:.0f} s: {verdict}")
-    return 0 if wall < TARGET_S else 1
+    return 0 if verdict == "met" else 1
 
 
 if __name__ == "__main__":

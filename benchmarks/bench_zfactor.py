@@ -24,8 +24,8 @@ import time
 import numpy as np
 from scipy.optimize import brentq
 
-from server.engine import zfactor
-from server.engine.pvt import GasFluid, z_factor
+from server.engine.pvt import zfactor
+from server.engine.pvt.gas import GasFluid, z_factor
 from server.engine.units import KPA_PER_PSI, K_from_degF
 
 LEAN_NAMES = "Methane&Ethane&Propane&Nitrogen&CarbonDioxide"

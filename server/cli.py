@@ -5,7 +5,9 @@ from __future__ import annotations
 import argparse
 import sys
 
-from sqlalchemy import select
+# Every command imports what it needs inside its own function: `tankbook analyse` reads
+# files with no database, and importing SQLAlchemy and the models would cost it about half
+# a second of its start-up (issue 17).
 
 
 def _settings():
@@ -42,8 +44,10 @@ def _pin(settings, db=None) -> None:
 
 def cmd_demo(args) -> int:
     from .db.session import Database
-    from .services import jobs
     from .services.demo import demo_is_loaded, load_demo
+    from .services.jobs import runner
+    from .services.reserves.demo_reviews import load_demo_reviews
+    from .services.reserves.rules import ReservesError
 
     settings = _settings()
     db = Database(settings.database_url)
@@ -53,32 +57,73 @@ def cmd_demo(args) -> int:
         if not loaded:
             ids = load_demo(session)
     if loaded:
+        db.dispose()
         if not args.if_empty:
             print("the database already holds fields; refusing to add the demo portfolio", file=sys.stderr)
             return 1
         print("the database already holds fields; demo portfolio not loaded")
-        _first_admin(db)
         return 0
-    ran = jobs.drain(db)
+    ran = runner.drain(db)
+    try:
+        with db.session(write=True) as session:
+            reviews = load_demo_reviews(session)
+    except ReservesError as e:  # e.g. a field's estimate failed: the portfolio stays, without reviews
+        print(f"the demo's reserves reviews were not added: {e}", file=sys.stderr)
+        reviews = None
     print(f"loaded the demo portfolio: {len(ids)} fields, {ran} estimates computed")
-    _first_admin(db)
+    if reviews:
+        print("with two reserves reviews: last year's approved, this year's in draft")
     db.dispose()
     return 0
 
 
-def _first_admin(db) -> None:
-    """On a database without users, make ``admin`` with a one-time password and print it once."""
+def _first_admin(database_url: str) -> str | None:
+    """On a database without users, make ``admin`` with a one-time password and return it."""
     from .db.base import utcnow
-    from .services.accounts import FIRST_ADMIN, ensure_first_admin
+    from .db.session import Database
+    from .services.access.accounts import ensure_first_admin
 
-    with db.session() as session:
-        password = ensure_first_admin(session, now=utcnow())
+    db = Database(database_url)
+    try:
+        with db.session() as session:
+            return ensure_first_admin(session, now=utcnow())
+    finally:
+        db.dispose()
+
+
+def first_admin_banner(url: str, password: str) -> str:
+    """The one-time administrator password, framed, with how to replace it if it is lost."""
+    from .services.access.accounts import FIRST_ADMIN
+
+    lines = [
+        f"Tankbook is ready at {url}",
+        "",
+        f"Log in as {FIRST_ADMIN!r} with this one-time password:",
+        "",
+        f"    {password}",
+        "",
+        "You choose your own password when you first log in;",
+        "this one is shown only now.",
+        "Lost it? Stop the server and set a new one with",
+        f"    .venv/bin/tankbook set-password {FIRST_ADMIN}",
+    ]
+    width = max(len(line) for line in lines)
+    rule = "+" + "-" * (width + 4) + "+"
+    return "\n".join([rule, *(f"|  {line:<{width}}  |" for line in lines), rule])
+
+
+def _announce_first_admin(server, settings, url: str) -> None:
+    """Once the server listens, make the first administrator (a database without users only)
+    and print its password last, after the server's start-up lines."""
+    import time
+
+    while not server.started:
+        if server.should_exit:
+            return
+        time.sleep(0.05)
+    password = _first_admin(settings.database_url)
     if password:
-        print(
-            f"\nCreated the administrator {FIRST_ADMIN!r} with this one-time password:\n\n    {password}\n\n"
-            "Log in with it once and choose your own password; it is not shown again.\n"
-            "(Lost it? `tankbook set-password admin` sets a new one.)\n"
-        )
+        print("\n" + first_admin_banner(url, password) + "\n", flush=True)
 
 
 def _read_password(args, username: str) -> str:
@@ -95,12 +140,14 @@ def _read_password(args, username: str) -> str:
 
 
 def _account_command(args, *, role: str | None) -> int:
+    from sqlalchemy import select
+
     from .db.base import utcnow
     from .db.models import Asset, User
     from .db.session import Database
-    from .services import accounts
+    from .services.access import accounts
+    from .services.access.passwords import PasswordPolicyError
     from .services.audit import Actor
-    from .services.passwords import PasswordPolicyError
 
     settings = _settings()
     db = Database(settings.database_url)
@@ -162,9 +209,12 @@ def cmd_set_password(args) -> int:
 
 
 def cmd_recompute(args) -> int:
+    from sqlalchemy import select
+
     from .db.models import Field
     from .db.session import Database
-    from .services import jobs
+    from .services.jobs import queue as jobs
+    from .services.jobs import runner
 
     db = Database(_settings().database_url)
     with db.session() as session:
@@ -173,13 +223,15 @@ def cmd_recompute(args) -> int:
             stmt = stmt.where(Field.name.in_(args.field))
         ids = list(session.execute(stmt).scalars())
         jobs.enqueue_field_recompute(session, ids, reason="command line")
-    ran = jobs.drain(db)
+    ran = runner.drain(db)
     print(f"recomputed {ran} field(s)")
     db.dispose()
     return 0
 
 
 def cmd_serve(args) -> int:
+    import threading
+
     import uvicorn
 
     from .app import create_app
@@ -188,8 +240,9 @@ def cmd_serve(args) -> int:
     overrides = {k: v for k, v in (("host", args.host), ("port", args.port)) if v}
     settings = Settings(**overrides)  # re-validated: a public host needs a real secret key
     host, port = settings.host, settings.port
-    print(f"Tankbook at http://{host}:{port}/")
-    uvicorn.run(
+    url = f"http://{host}:{port}/"
+    print(f"Tankbook at {url}", flush=True)
+    config = uvicorn.Config(
         create_app(settings),
         host=host,
         port=port,
@@ -197,6 +250,12 @@ def cmd_serve(args) -> int:
         proxy_headers=True,  # trust X-Forwarded-For/-Proto only from forwarded_allow_ips
         forwarded_allow_ips=settings.forwarded_allow_ips,
     )
+    server = uvicorn.Server(config)
+    if args.first_admin:
+        threading.Thread(
+            target=_announce_first_admin, args=(server, settings, url), name="first-admin", daemon=True
+        ).start()
+    server.run()
     return 0
 
 
@@ -205,7 +264,7 @@ def cmd_worker(args) -> int:
     import signal
 
     from .db.session import Database
-    from .services.worker import Worker
+    from .services.jobs.worker import Worker
 
     settings = _settings()
     db = Database(settings.database_url)
@@ -216,9 +275,9 @@ def cmd_worker(args) -> int:
         stale_after=dt.timedelta(seconds=settings.job_stale_seconds),
     )
     if args.once:
-        from .services import jobs
+        from .services.jobs import runner
 
-        print(f"ran {jobs.drain(db, worker.name, stale_after=worker.stale_after)} job(s)")
+        print(f"ran {runner.drain(db, worker.name, stale_after=worker.stale_after)} job(s)")
         db.dispose()
         return 0
     for sig in (signal.SIGTERM, signal.SIGINT):
@@ -235,6 +294,8 @@ def cmd_analyse(args) -> int:
 
     from .engine.analysis import analyse_field
     from .engine.errors import EngineError
+    from .services.forecast import CAUTION as FORECAST_CAUTION
+    from .services.forecast import stop_words, stored_forecast
     from .services.ingest.offline import OfflineInputError, load_offline_field
     from .services.ingest.parse import ReadOptions
     from .services.serialize import to_jsonable
@@ -258,9 +319,13 @@ def cmd_analyse(args) -> int:
             production=Path(args.production),
             wells=Path(args.wells) if args.wells else None,
             lab_table=Path(args.lab_table) if args.lab_table else None,
+            volumetrics=Path(args.volumetrics) if args.volumetrics else None,
             field_name=args.field,
             options=options,
             choices=choices,
+            well_tests=Path(args.well_tests) if args.well_tests else None,
+            plan=Path(args.plan) if args.plan else None,
+            planned_wells=Path(args.planned_wells) if args.planned_wells else None,
         )
         result = analyse_field(loaded.inputs)
     except OfflineInputError as exc:
@@ -289,18 +354,44 @@ def cmd_analyse(args) -> int:
                 "recovery_factor_frac": result.recovery_factor_frac,
                 "cumulative_gas_bscf": result.cumulative_gas_bscf,
                 "remaining_bscf": result.remaining_bscf,
+                "basis": None if result.basis is None else result.basis.title,
+                "basis_reason": None if result.basis is None else result.basis.reason,
+                "straight_line_giip_bscf": result.line_giip_best_bscf,
                 "standard_conditions": loaded.inputs.standard_conditions.label,
             }
         ),
         "analysis": to_jsonable(result),
     }
+    forecast, _ = stored_forecast(result.forecast)
+    out["analysis"]["forecast"] = forecast
+    out["forecast"] = None
+    if forecast is not None:  # the summary: per case its end, why, EUR and remaining; and the caution
+        out["forecast"] = {
+            "basis_model": forecast["basis_model"],
+            "caution": FORECAST_CAUTION,
+            "cases": [
+                {
+                    "case": p["case"],
+                    "end_date": p["end_date"],
+                    "stop_reason": p["stop_reason"],
+                    "stops_because": stop_words(p["stop_reason"]),
+                    "eur_bscf": p["eur_bscf"],
+                    "remaining_bscf": p["remaining_bscf"],
+                    "yearly_gas_bscf": {str(r["year"]): r["gas_bscf"] for r in p["yearly"]},
+                }
+                for p in forecast["profiles"]
+            ],
+        }
+    elif loaded.inputs.plan is None:
+        out["forecast_message"] = "no forecast: give the field's plan with --plan"
     print(json.dumps(out, indent=2, allow_nan=False))
     return 0 if result.status == "ok" else 3
 
 
 CAUTION = (
     "Estimates support, and do not replace, the judgement of qualified reservoir engineers; reserves "
-    "must be booked under the rules that apply to your company. Intervals reflect data scatter only."
+    "must be booked under the rules that apply to your company. Low/best/high (P90/P50/P10) combine data "
+    "scatter, model spread and systematic input errors; no model sees a mechanism it does not hold."
 )
 
 
@@ -308,8 +399,14 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="tankbook", description=__doc__)
     sub = parser.add_subparsers(dest="command", required=True)
     s = sub.add_parser("serve", help="run the web application")
-    s.add_argument("--host")
-    s.add_argument("--port", type=int)
+    s.add_argument("--host", help="address to listen on (default TANKBOOK_HOST, 127.0.0.1)")
+    s.add_argument("--port", type=int, help="port to listen on (default TANKBOOK_PORT, 8000)")
+    s.add_argument(
+        "--first-admin",
+        action="store_true",
+        help="on a database without users, create 'admin' with a one-time password and print it "
+        "once the server listens",
+    )
     s.set_defaults(func=cmd_serve)
     m = sub.add_parser("migrate", help="create or upgrade the database schema")
     m.set_defaults(func=cmd_migrate)
@@ -349,8 +446,16 @@ def build_parser() -> argparse.ArgumentParser:
     a.add_argument("--production", required=True, help="monthly production file")
     a.add_argument("--wells", help="wells file (compartments, gauge reference depths)")
     a.add_argument("--lab-table", help="fluid lab table file")
+    a.add_argument(
+        "--volumetrics",
+        help="volumetric estimates file: the newest of the field is compared with the dynamic GIIP, "
+        "as in the app",
+    )
     a.add_argument("--field", help="field name, when the files hold several")
     a.add_argument("--choices", help="JSON file of analysis choices (z_method, weighting, ...)")
+    a.add_argument("--well-tests", help="well tests file (multi-rate tests, for deliverability)")
+    a.add_argument("--plan", help="field plans file: the field's plan; without it there is no forecast")
+    a.add_argument("--planned-wells", help="planned wells file (needs --plan)")
     a.add_argument(
         "--unit",
         action="append",

@@ -53,9 +53,31 @@ class Settings(BaseSettings):
     login_free_failures_per_address: int = Field(default=20, ge=1)
     login_throttle_window_minutes: int = Field(default=15, gt=0)
     login_max_delay_seconds: int = Field(default=900, gt=0)
+    threads: int = Field(
+        default=20,
+        gt=0,
+        le=500,
+        description="Requests served at once per process (the thread pool of routes); each holds at "
+        "most one database connection.",
+    )
+    db_pool_size: int | None = Field(
+        default=None,
+        gt=0,
+        description="Database connections per process; by default threads + 4 (the job worker, its "
+        "heartbeat, a page's own recompute), so no request waits for a connection.",
+    )
+    db_pool_timeout_seconds: float = Field(
+        default=30.0,
+        gt=0,
+        description="How long a request waits for a pooled connection before it fails (with the "
+        "admission tickets no request should ever wait).",
+    )
     job_poll_seconds: float = Field(default=2.0, gt=0, description="How often an idle worker looks for jobs.")
     job_stale_seconds: int = Field(
-        default=300, gt=0, description="A running job without a heartbeat for this long is taken over."
+        default=15,
+        gt=0,
+        description="A running job without a heartbeat for this long is taken over (its worker beats "
+        "every fifth of it, so only a worker that is gone falls silent).",
     )
     xlsx_max_uncompressed_bytes: int = Field(
         default=100 * 1024 * 1024,
@@ -63,6 +85,24 @@ class Settings(BaseSettings):
         description="XLSX uploads that expand beyond this are refused unopened.",
     )
     xlsx_max_members: int = Field(default=500, gt=0, description="XLSX uploads with more parts are refused.")
+    staging_max_bytes_per_user: int = Field(
+        default=64 * 1024 * 1024,
+        gt=0,
+        description="Checked files one user may keep waiting for confirmation (the oldest make room).",
+    )
+    staging_max_bytes_total: int = Field(
+        default=1024 * 1024 * 1024,
+        gt=0,
+        description="Checked files all users together may keep waiting for confirmation (then refused).",
+    )
+    upload_max_rows: int = Field(
+        default=1_000_000, gt=0, description="Uploads with more data rows are refused (the upload budget)."
+    )
+    upload_max_cells: int = Field(
+        default=3_000_000,
+        gt=0,
+        description="Uploads with more cells are refused as soon as the count passes it (the upload budget).",
+    )
 
     @model_validator(mode="after")
     def _refuse_insecure(self) -> Settings:
@@ -76,6 +116,17 @@ class Settings(BaseSettings):
         elif len(self.secret_key) < 32:
             raise ValueError("TANKBOOK_SECRET_KEY must be at least 32 characters")
         return self
+
+    @property
+    def pool_size(self) -> int:
+        """Connections per process: ``db_pool_size``, or the thread count plus background work."""
+        return self.db_pool_size if self.db_pool_size is not None else self.threads + 4
+
+    @property
+    def request_tickets(self) -> int:
+        """Requests that may hold a database session at once: the route threads, but always
+        at least one connection fewer than the pool (web/deps.py get_session)."""
+        return max(1, min(self.threads, self.pool_size - 1))
 
     @property
     def is_sqlite(self) -> bool:

@@ -17,7 +17,7 @@ from server.db.models import (
     VolumetricEstimate,
     Well,
 )
-from server.engine.pvt import GasFluid
+from server.engine.pvt.gas import GasFluid
 from server.synthetic.schedule import month_starts
 from server.synthetic.tank import TankSpec, simulate
 
@@ -102,12 +102,13 @@ def add_volumetric_history(
 
 def field_with_estimate(db, name: str = "Upland", **field_kwargs) -> int:
     """A field with a volumetric history and its computed estimate; returns its id."""
-    from server.services import jobs
+    from server.services.jobs import queue as jobs
+    from server.services.jobs import runner
 
     with db.session() as s:
         f = make_field(s, name=name, **field_kwargs)
         add_volumetric_history(s, f)
         jobs.enqueue_field_recompute(s, [f.id], reason="test")
         fid = f.id
-    jobs.drain(db)
+    runner.drain(db)
     return fid

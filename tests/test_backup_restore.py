@@ -16,9 +16,11 @@ import sqlalchemy as sa
 from server.db.base import Base, utcnow
 from server.db.migrate import upgrade
 from server.db.session import Database
-from server.services import accounts, jobs
+from server.services.access import accounts
 from server.services.audit import Actor
-from server.services.portfolio import portfolio_rows
+from server.services.jobs import queue as jobs
+from server.services.jobs import runner
+from server.services.portfolio.rows import portfolio_rows
 from tests.conftest import create_pg_database, drop_pg_database
 from tests.factories import add_volumetric_history, make_field
 
@@ -41,7 +43,7 @@ def _build_portfolio(url: str) -> None:
             password="ochre-kettle-meadow-31",
             now=utcnow(),
         )
-    jobs.drain(db)
+    runner.drain(db)
     db.dispose()
 
 

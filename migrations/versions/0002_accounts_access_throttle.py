@@ -76,7 +76,6 @@ def upgrade() -> None:
         batch_op.add_column(sa.Column("last_login_at", sa.DateTime(timezone=True), nullable=True))
 
 
-
 def downgrade() -> None:
     with op.batch_alter_table("user_account", schema=None) as batch_op:
         batch_op.drop_column("last_login_at")

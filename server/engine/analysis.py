@@ -1,6 +1,6 @@
 """One field's analysis: the engine's entry point for the services layer.
 
-Stage 1 (:mod:`.prepare`) corrects the data into p/z points; stage 2 (here) fits the
+Stage 1 (:mod:`.prepare.points`) corrects the data into p/z points; stage 2 (here) fits the
 single-tank p/z estimate the engineer chose (plain, anchored, with a given or fitted
 ce), keeps the uncorrected line beside a corrected one for comparison, and fits the
 comparable models on the same screened points. The result is a frozen tree of
@@ -15,20 +15,38 @@ import math
 from dataclasses import dataclass, field
 
 from . import ENGINE_VERSION
-from .diagnosis import DEFAULT_FITTERS, Diagnosis, Headline, diagnose_field
+from .diagnosis.diagnose import DEFAULT_FITTERS, Diagnosis, Headline, diagnose_field
+from .diagnosis.flag_rules import raise_flags
+from .diagnosis.flags import Outlier
 from .errors import EngineError, InputRangeError, InsufficientDataError
-from .flags import Outlier
+from .forecast.build import forecast_field
+from .forecast.types import Forecast
+from .headline.build import choose_basis, model_outcomes, replace_dynamic
+from .headline.connected import apart_wells, connected_tank_fit
+from .headline.outcomes import TITLES
+from .headline.ranges import Z90
+from .headline.refused import headline_without_line
+from .headline.types import Basis, ModelOutcome
+from .headline.volumetric import young_field_headline
 from .inputs import OVERPRESSURE_MODES, WEIGHTINGS, AnalysisChoices, FieldInputs
 from .modelfit import ModelFit
-from .overpressure import single_tank_modelfit, tank_ce_modelfit
-from .prepare import PreparedData, prepare
-from .pz import PointStatus, PzEstimate, estimate_pz, method_key
+from .prepare.points import PreparedData, prepare
+from .tank.overpressure import single_tank_modelfit, tank_ce_modelfit
+from .tank.pz_estimate import PointStatus, PzEstimate, estimate_pz, method_key
 
 # Reported beside the numbers everywhere they are shown (pages, exports).
 CAUTION = (
-    "Intervals reflect survey scatter only, not model error (aquifer, compartments, wrong z). "
-    "Estimates support, and do not replace, the judgement of qualified engineers and the "
+    "Low, best and high (P90, P50, P10) combine survey scatter, the spread of the models the data "
+    "cannot tell apart, and metering, gauge and z-factor errors; they cannot see a mechanism no model "
+    "holds. Estimates support, and do not replace, the judgement of qualified engineers and the "
     "reserves rules that apply (regulators, SPE-PRMS)."
+)
+# In place of CAUTION when the headline rests on the volumetric estimate (engine/headline/volumetric.py).
+VOLUMETRIC_CAUTION = (
+    "Low, best and high (P90, P50, P10) are the volumetric estimate's; the surveys cannot yet check "
+    "them, and EUR assumes a closed tank (an aquifer would lower it). Keep surveying: material balance "
+    "takes over once the pressure has fallen enough. Estimates support, and do not replace, the "
+    "judgement of qualified engineers and the reserves rules that apply (regulators, SPE-PRMS)."
 )
 
 
@@ -61,10 +79,25 @@ class FieldAnalysis:
     eur_bscf: float | None = None
     recovery_factor_frac: float | None = None
     remaining_bscf: float | None = None
-    flags: tuple = ()  # the diagnosis' flags (engine/flags.py), most severe first
+    flags: tuple = ()  # the diagnosis' flags (engine/diagnosis/flags.py), most severe first
     diagnosis: Diagnosis | None = None  # every model compared, wells, evidence (see with_diagnosis)
+    # The headline (engine/headline): the model the giip_*/eur/recovery/remaining numbers above
+    # come from once the diagnosis has run, and every model's own outcome. The straight line
+    # (the p/z estimate of the choices) stays beside it in line_*.
+    basis: Basis | None = None
+    outcomes: tuple[ModelOutcome, ...] = ()
+    line_giip_low_bscf: float | None = None
+    line_giip_best_bscf: float | None = None
+    line_giip_high_bscf: float | None = None
+    line_eur_bscf: float | None = None
+    forecast: Forecast | None = None  # engine/forecast: profiles from the basis (None without a plan)
     engine_version: str = ENGINE_VERSION
     notes: tuple[str, ...] = field(default_factory=tuple)
+
+    @property
+    def pz_model(self) -> str:
+        """The outcome key of the p/z estimate: the line, or rock and water expansion when corrected."""
+        return "single_tank" if self.pz_uncorrected is None else "tank_ce"
 
     @property
     def cumulative_gas_bscf(self) -> float:
@@ -90,7 +123,15 @@ def check_choices(choices: AnalysisChoices) -> None:
 
 def analyse_field(inputs: FieldInputs) -> FieldAnalysis:
     """Prepare a field's data, analyse it and diagnose it; the p/z estimate refuses with a
-    reason when data are too thin (the diagnosis still runs and says why)."""
+    reason when data are too thin (the diagnosis still runs and says why).
+
+    Raises
+    ------
+    EngineError
+        The engine's only refusal (``InsufficientDataError``, ``InputRangeError``): inputs
+        that cannot give an answer, e.g. surveys that all lie at one cumulative production.
+        Degenerate fields never raise anything else (tests/engine/test_degenerate_inputs.py).
+    """
     check_choices(inputs.choices)
     return with_diagnosis(inputs, analyse_prepared(prepare(inputs), inputs.choices))
 
@@ -225,7 +266,7 @@ def _attempted_method(prepared: PreparedData, choices: AnalysisChoices) -> str:
 
 
 # ── Diagnosis: every model on the same screened points, the comparison and the flags ──
-# (engine/diagnosis.py; kept apart from the p/z estimate above, which it only reads)
+# (engine/diagnosis/diagnose.py; kept apart from the p/z estimate above, which it only reads)
 
 
 def with_diagnosis(inputs: FieldInputs, result: FieldAnalysis) -> FieldAnalysis:
@@ -248,7 +289,194 @@ def with_diagnosis(inputs: FieldInputs, result: FieldAnalysis) -> FieldAnalysis:
     diag = diagnose_field(
         inputs, screened, fitters=fitters, headline=headline, outliers=_estimate_outliers(inputs, result)
     )
-    return dataclasses.replace(result, diagnosis=diag, flags=diag.flags)
+    if result.status != "ok":  # a refused field shows no best fit in its headline
+        young = any(f.code == "too_little_depletion" for f in diag.flags)
+        if young and inputs.volumetric is not None:
+            return with_volumetric(inputs, screened, result, diag)
+        found = headline_without_line(inputs, screened, diag)
+        if found is not None:  # the line mixed two compartments; the connected tank carries it
+            return _without_line(inputs, screened, result, *found, caution=CAUTION)
+        return dataclasses.replace(result, diagnosis=diag, flags=diag.flags)
+    return with_headline(inputs, screened, result, diag)
+
+
+def with_volumetric(
+    inputs: FieldInputs, screened: PreparedData, result: FieldAnalysis, diag
+) -> FieldAnalysis:
+    """A field the p/z estimate refused for too little depletion, with a volumetric estimate:
+    the headline rests on that estimate (engine/headline/volumetric.py), status "ok" so every
+    page, total and the reserves review book it; there is no p/z line (``pz`` None) and the
+    refusal's reason stays in the message and the notes."""
+    basis, outcomes = young_field_headline(inputs, screened, diag, result.message)
+    caution = VOLUMETRIC_CAUTION if basis.model == "volumetric" else CAUTION
+    return _without_line(inputs, screened, result, basis, outcomes, diag, caution=caution)
+
+
+def _without_line(
+    inputs: FieldInputs,
+    screened: PreparedData,
+    result: FieldAnalysis,
+    basis: Basis,
+    outcomes: tuple[ModelOutcome, ...],
+    diag,
+    *,
+    caution: str,
+) -> FieldAnalysis:
+    """A refused p/z estimate whose field still has a basis (the volumetric estimate of a young
+    field, or the connected tank of a field whose line mixed two compartments): status "ok"
+    with no p/z line (``pz`` None); the refusal's reason stays in the message and the notes."""
+    why = result.message
+    out = dataclasses.replace(
+        result,
+        status="ok",
+        message=f"{basis.title}: {why}",
+        method=basis.model,
+        diagnosis=diag,
+        flags=diag.flags,
+        outcomes=outcomes,
+        notes=(
+            f"No p/z estimate: {why}.",
+            *(n for n in result.notes if n != CAUTION),
+            caution,
+        ),
+    )
+    out = with_forecast(inputs, screened, out, diag, basis)
+    return dataclasses.replace(
+        out,
+        basis=basis,
+        giip_low_bscf=basis.giip_low_bscf,
+        giip_best_bscf=basis.giip_bscf,
+        giip_high_bscf=basis.giip_high_bscf,
+        giip_range_kind=basis.range_kind,
+        eur_bscf=basis.eur_bscf,
+        recovery_factor_frac=basis.recovery_factor_frac,
+        remaining_bscf=basis.remaining_bscf,
+    )
+
+
+def with_headline(inputs: FieldInputs, screened: PreparedData, result: FieldAnalysis, diag) -> FieldAnalysis:
+    """The analysis with every model's outcome, the basis of its headline numbers and the
+    booked range; the flags are raised again with the basis held against the volumetric range."""
+    level = inputs.choices.confidence_level
+    plain = result.pz_uncorrected or result.pz
+    line = _line_outcome(plain, "single_tank", diag, level)
+    corrected = None
+    if result.pz_uncorrected is not None:
+        title = f"Rock and water expansion (ce {inputs.choices.overpressure_mode})"
+        corrected = dataclasses.replace(_line_outcome(result.pz, "tank_ce", diag, level), title=title)
+    boot = plain.giip_range_bscf.bootstrap
+    line_sigma = None
+    if boot and boot.p90 > 0 and math.isfinite(boot.p10):
+        line_sigma = math.log(boot.p10 / boot.p90) / (2.0 * Z90)
+    outcomes = model_outcomes(inputs, screened, diag, line=line, corrected=corrected)
+    basis = choose_basis(inputs, screened, diag, outcomes, diag.flags, line_scatter_sigma=line_sigma)
+    evidence = replace_dynamic(diag.evidence, basis)
+    flags = raise_flags(evidence, inputs.flag_thresholds)
+    diag = dataclasses.replace(diag, evidence=evidence, flags=flags)
+    out = dataclasses.replace(
+        result,
+        diagnosis=diag,
+        flags=flags,
+        outcomes=outcomes,
+        line_giip_low_bscf=result.giip_low_bscf if result.pz_uncorrected is None else None,
+        line_giip_best_bscf=plain.giip_bscf,
+        line_giip_high_bscf=result.giip_high_bscf if result.pz_uncorrected is None else None,
+        line_eur_bscf=plain.eur_bscf,
+    )
+    if basis is None:
+        return out
+    chosen = next(o for o in outcomes if o.model == basis.model)
+    out = with_forecast(inputs, screened, out, diag, basis)
+    return dataclasses.replace(
+        out,
+        basis=basis,
+        message=f"{basis.title}: {result.message}" if basis.model != "single_tank" else result.message,
+        giip_low_bscf=basis.giip_low_bscf,
+        giip_best_bscf=basis.giip_bscf,
+        giip_high_bscf=basis.giip_high_bscf,
+        giip_range_kind=basis.range_kind,
+        **(
+            {}
+            if basis.model == result.pz_model
+            else {
+                "giip_ci_low_bscf": chosen.giip_low_bscf,
+                "giip_ci_high_bscf": chosen.giip_high_bscf,
+                "giip_ci_kind": f"{100 * level:.0f} % confidence interval of the {basis.title.lower()}",
+            }
+        ),
+        eur_bscf=basis.eur_bscf,
+        recovery_factor_frac=basis.recovery_factor_frac,
+        remaining_bscf=basis.remaining_bscf,
+    )
+
+
+def with_forecast(inputs: FieldInputs, screened: PreparedData, result: FieldAnalysis, diag, basis: Basis):
+    """The analysis with the forecast of the plan from the basis (engine/forecast); a forecast
+    that cannot be made is a note, never a refusal of the analysis."""
+    if inputs.plan is None:
+        return result
+    try:
+        params = _basis_params(inputs, screened, result, diag, basis.model)
+        if basis.model == "connected_tank":  # the wells set apart see another compartment
+            apart = set(apart_wells(diag.wells))
+            points = tuple(
+                dataclasses.replace(p, included=False, reason="another compartment") if p.well in apart else p
+                for p in screened.points
+            )
+            screened = dataclasses.replace(screened, points=points)
+        forecast = forecast_field(inputs, screened, basis, params)
+    except (EngineError, ValueError, KeyError, FloatingPointError, ZeroDivisionError) as exc:
+        return dataclasses.replace(result, notes=(*result.notes, f"No forecast: {exc}."))
+    return dataclasses.replace(result, forecast=forecast)
+
+
+def _basis_params(
+    inputs: FieldInputs, screened: PreparedData, result: FieldAnalysis, diag, model: str
+) -> dict:
+    """The basis model's parameters: the p/z estimate's line (as the headline uses it), else its fit."""
+    plain = result.pz_uncorrected or result.pz
+    if model == "volumetric":  # one closed tank from the field's initial p/z
+        return {"initial_pz_psia": screened.initial_pz_psia}
+    if model == "single_tank" and plain is not None:
+        return {"initial_pz_psia": plain.intercept_psia, "giip_bscf": plain.giip_bscf}
+    if model == "tank_ce" and result.pz_uncorrected is not None:
+        pz = result.pz
+        return {"initial_pz_psia": pz.intercept_psia, "giip_bscf": pz.giip_bscf, "ce_per_psi": pz.ce_per_psi}
+    if model == "connected_tank":
+        fit = connected_tank_fit(screened, inputs.choices, diag.wells)
+        if fit is None:
+            raise InsufficientDataError("the connected tank could not be fitted again")
+        return fit.params
+    fit = next((m for m in diag.models if m.name == model), None)
+    if fit is None:
+        raise InsufficientDataError(f"the basis model {model} has no fit")
+    return fit.params
+
+
+def _line_outcome(est: PzEstimate, model: str, diag, level: float) -> ModelOutcome:
+    """A p/z estimate (with its screening, anchoring and weighting) as a model outcome."""
+    g = est.giip_range_bscf
+    ci = g.ci_fieller or g.ci_delta
+    low, high = (ci.low, ci.high) if ci else (None, None)
+    if high is not None and not math.isfinite(high):
+        high = None
+    bounded = low is not None and high is not None
+    row = diag.comparison.row(model) if diag.comparison else None
+    return ModelOutcome(
+        model=model,
+        title=TITLES[model],
+        giip_bscf=est.giip_bscf,
+        giip_low_bscf=low,
+        giip_high_bscf=high,
+        eur_bscf=est.eur_bscf,
+        recovery_factor_frac=est.recovery_factor_frac,
+        remaining_bscf=est.remaining_bscf,
+        determined=bounded,
+        status="determined" if bounded else "not determined: its GIIP interval is unbounded",
+        eur_method="closed form at the abandonment pressure",
+        delta_aicc=None if row is None or not math.isfinite(row.delta_aicc) else row.delta_aicc,
+        akaike_weight=None if row is None else row.akaike_weight,
+    )
 
 
 def _estimate_outliers(inputs: FieldInputs, result: FieldAnalysis) -> tuple[Outlier, ...] | None:

@@ -11,10 +11,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .flags import FlagThresholds
-from .pvt import GasFluid
+from .plan import FieldPlan, WellTest
+from .pvt.gas import GasFluid
+from .thresholds import FlagThresholds
 from .units import OILFIELD_60F, StandardConditions
-from .volumetrics import VolumetricResult
+from .volumetrics.estimate import VolumetricResult
 
 Z_METHODS = ("dak", "hall_yarborough")
 PSEUDO_CRITICAL_METHODS = ("sutton", "standing_natural_gas", "standing_condensate")
@@ -45,13 +46,16 @@ class AnalysisChoices:
     condensate_correction: bool = True
     # Produced water is normally free formation or aquifer water, a liquid withdrawal;
     # only an engineer who knows it is condensed vapour (fresh water, low water-gas
-    # ratio) should count it as a gas equivalent. See engine/prepare.py.
+    # ratio) should count it as a gas equivalent. See engine/prepare/points.py.
     water_vapour_correction: bool = False
     overpressure_mode: str = "off"
     effective_compressibility_per_psi: float | None = None
     anchor_initial: bool = False
     weighting: str = "quality"
-    aquifer_model: str = "none"
+    # The headline's basis: "automatic" (engine/headline/rules.py) or a model key of
+    # engine/headline/types.BASIS_MODELS, with the engineer's reason (required for a model).
+    basis_model: str = "automatic"
+    basis_reason: str = ""
     confidence_level: float = 0.95
     bootstrap_samples: int = 1000
     random_seed: int = 20261202  # fixed: the same inputs always give the same numbers
@@ -86,11 +90,20 @@ class FieldInputs:
     survey_id: tuple[int, ...] = ()
     production_by_compartment: tuple[tuple[str, np.ndarray], ...] = ()
     condensate_api: float | None = None
+    # The reservoir gas gravity as entered (air = 1); when given, z uses it as it is and the
+    # separator gas is recombined only to check it (engine/pvt/wellstream.py).
+    wellstream_gravity: float | None = None
+    # False when no separator gas gravity is known: fluid.gas_gravity is then the
+    # well-stream gravity standing in for it.
+    separator_gravity_given: bool = True
     lab_table: LabTable | None = None
     choices: AnalysisChoices = field(default_factory=AnalysisChoices)
     standard_conditions: StandardConditions = OILFIELD_60F
     volumetric: VolumetricResult | None = None  # the static estimate the flags compare with
     flag_thresholds: FlagThresholds = field(default_factory=FlagThresholds)
+    well_tests: tuple[WellTest, ...] = ()  # multi-rate tests for deliverability (engine/forecast)
+    plan: FieldPlan | None = None  # how the field will be produced; None: no forecast
+    production_by_well: tuple[tuple[str, np.ndarray], ...] = ()  # separator gas per period [Mscf]
 
     @property
     def n_surveys(self) -> int:

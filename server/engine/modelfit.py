@@ -11,6 +11,36 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+#: Words for the fitted parameters' keys, for notes and pages (keys stay stable for programs).
+PARAMETER_WORDS = {
+    "giip_bscf": "GIIP",
+    "initial_pz_psia": "initial p/z",
+    "initial_pressure_psia": "initial pressure",
+    "ce_per_psi": "effective compressibility",
+    "ct_wi_rb_per_psi": "aquifer strength (ct Wi)",
+    "wei_rb": "encroachable water (Wei)",
+    "j_rb_per_day_psi": "aquifer productivity index (J)",
+    "decay_per_day": "aquifer time constant",
+    "u_rb_per_psi": "aquifer constant (U)",
+    "td_per_day": "aquifer dimensionless time per day",
+    "red": "aquifer outer radius ratio",
+    "influx_frac_of_gas_pv": "water influx as a share of the gas pore volume",
+}
+WEIGHTED_RSS_NOTE = "Residuals are weighted by survey quality (good = 1) before they are summed."
+
+
+def parameter_words(key: str) -> str:
+    """A fitted parameter's key in words (tank-network keys by their tank number)."""
+    if key in PARAMETER_WORDS:
+        return PARAMETER_WORDS[key]
+    if key.startswith("giip_tank"):
+        n = key.removeprefix("giip_tank").split("_")[0]
+        return "GIIP of the producing tank" if n == "1" else f"GIIP of tank {n}"
+    if key.startswith("transmissibility_tank"):
+        n = key.removeprefix("transmissibility_tank").split("_")[0]
+        return f"connection of tank {n} to the producing tank"
+    return key.replace("_", " ")
+
 
 @dataclass(frozen=True)
 class ModelFit:
@@ -30,3 +60,17 @@ class ModelFit:
     identifiable: bool = True
     converged: bool = True
     notes: tuple[str, ...] = ()
+
+
+#: Longest look ahead when a model is stepped to the abandonment pressure [years] (common practice).
+HORIZON_YEARS = 50.0
+
+
+@dataclass(frozen=True)
+class SteppedRecovery:
+    """A model stepped past its history at a constant rate to the abandonment pressure."""
+
+    eur_bscf: float
+    reached_abandonment: bool
+    years_ahead: float  # from the end of the history to abandonment (or the horizon)
+    method: str  # for people

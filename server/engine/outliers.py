@@ -65,7 +65,10 @@ def linear_subset_fits(design, y, weights, offset=None) -> Callable[[np.ndarray]
 
     def fit_subset(mask):
         xm = xw[mask]
-        coef = np.linalg.solve(xm.T @ xm, xm.T @ yw[mask])  # p <= 3 columns: normal equations
+        try:
+            coef = np.linalg.solve(xm.T @ xm, xm.T @ yw[mask])  # p <= 3 columns: normal equations
+        except np.linalg.LinAlgError:  # a subset at one Gp: the minimum-norm solution
+            coef = np.linalg.lstsq(xm, yw[mask], rcond=None)[0]
         return SubsetFit(x, yy - x @ coef, w)
 
     return fit_subset
@@ -98,7 +101,10 @@ def _deletion_statistics(fit: SubsetFit, keep: np.ndarray, variance_factor: floa
     m, p = int(keep.sum()), jac.shape[1]
     sw = np.sqrt(w)
     jk = jac[keep]
-    v = np.linalg.inv(jk.T @ (jk * w[keep, None]))  # (J'WJ)^-1 over the kept points
+    try:
+        v = np.linalg.inv(jk.T @ (jk * w[keep, None]))  # (J'WJ)^-1 over the kept points
+    except np.linalg.LinAlgError:  # kept points at one Gp: the pseudo-inverse
+        v = np.linalg.pinv(jk.T @ (jk * w[keep, None]))
     h = w * np.sum((jac @ v) * jac, axis=1)
     s2 = float(np.sum(w[keep] * r[keep] ** 2)) / (m - p) * variance_factor
     u = r * sw

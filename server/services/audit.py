@@ -9,10 +9,10 @@ from __future__ import annotations
 import datetime as dt
 from dataclasses import dataclass
 
-from sqlalchemy import select
+from sqlalchemy import and_, or_, select
 from sqlalchemy.orm import Session
 
-from ..db.models import AuditEvent
+from ..db.models import AuditEvent, Field
 
 
 @dataclass(frozen=True)
@@ -114,9 +114,20 @@ def events(
     field_id: int | None = None,
     before_id: int | None = None,
     limit: int = 100,
+    asset_ids: frozenset[int] | None = None,
+    user_ids=None,
 ) -> list[AuditRow]:
-    """Audit events newest first, optionally filtered; page with ``before_id``."""
+    """Audit events newest first, optionally filtered; page with ``before_id``.
+
+    ``asset_ids`` (a reader limited to some assets): only events of fields of those assets,
+    and of the accounts in ``user_ids`` (a SELECT of user ids; none if omitted)."""
     stmt = select(AuditEvent).order_by(AuditEvent.id.desc()).limit(limit)
+    if asset_ids is not None:
+        fields = select(Field.id).where(Field.asset_id.in_(sorted(asset_ids)))
+        mine = AuditEvent.field_id.in_(fields)
+        if user_ids is not None:
+            mine = or_(mine, and_(AuditEvent.entity_type == "user", AuditEvent.entity_id.in_(user_ids)))
+        stmt = stmt.where(mine)
     if entity_type:
         stmt = stmt.where(AuditEvent.entity_type == entity_type)
     if entity_id is not None:

@@ -26,7 +26,7 @@ from ..db.models import (
     VolumetricEstimate,
     Well,
 )
-from ..engine.pvt import GasFluid
+from ..engine.pvt.gas import GasFluid
 from ..synthetic.schedule import Deliverability, days, month_starts, survey_dates
 from ..synthetic.tank import (
     FetkovichAquifer,
@@ -36,7 +36,8 @@ from ..synthetic.tank import (
     gas_column_pressure_psia,
     simulate,
 )
-from .jobs import enqueue_field_recompute
+from .demo_plans import add_demo_plan
+from .jobs.queue import enqueue_field_recompute
 
 BASIN = "Harrowfen Basin"
 CONDENSED_WATER_STB_PER_MMSCF = 1.0
@@ -201,9 +202,10 @@ PORTFOLIO: tuple[DemoField, ...] = (
         ),
         20.0,
         (82.0, 100.0, 121.0),
-        # Pseudo-pressure connection, the form the two-tank fit uses (engine/tanks_fit.py), so the
-        # fitted model can recover this truth; c = 0.0013 scf cP/(d psi^2) is c' = c/(mu z)
-        # = 0.06 scf/d/psi^2 at mu z = 0.021 cP (about 4000 psia).
+        # Pseudo-pressure connection, the form the two-tank fit uses
+        # (engine/compartments/multitank_fit.py), so the fitted model can recover this truth;
+        # c = 0.0013 scf cP/(d psi^2) is c' = c/(mu z) = 0.06 scf/d/psi^2 at mu z = 0.021 cP
+        # (about 4000 psia).
         second_tank=SecondTank(42.0, connection_scf_cp_per_day_psi2=0.0013),
     ),
     DemoField(
@@ -435,6 +437,7 @@ def load_demo(session: Session, specs: tuple[DemoField, ...] = PORTFOLIO) -> lis
             )
         )
         session.flush()
+        add_demo_plan(session, f.id, spec.name, spec.plateau_mmscf_d)
         hist = build_field_history(spec, seed=1000 + i)
         session.add_all(
             ProductionMonth(

@@ -31,9 +31,10 @@ from sqlalchemy.orm import Session
 
 from ..db.base import utcnow
 from ..db.models import Estimate, FluidLabPoint, ProductionMonth, TeamSetting, VolumetricEstimate
-from ..engine.flags import THRESHOLD_LIMITS, FlagThresholdError, FlagThresholds, check_threshold
+from ..engine.thresholds import THRESHOLD_LIMITS, FlagThresholdError, FlagThresholds, check_threshold
 from ..engine.units import OILFIELD_60F, STANDARD_CONDITIONS, StandardConditions, standard_conditions
 from . import audit
+from .jobs import queue as jobs
 
 log = logging.getLogger(__name__)
 DISPLAY_UNITS = ("oilfield", "si")
@@ -93,6 +94,18 @@ def _thresholds(rows: dict) -> FlagThresholds:
     return FlagThresholds(**values)
 
 
+def from_environment(settings) -> TeamSettings:
+    """The environment's settings alone, with no database read (for an error page, which shows
+    no stored value and must not wait for a connection)."""
+    return TeamSettings(
+        display_units=str(settings.display_units),
+        atmosphere_psia=float(settings.atmosphere_psia),
+        standard_conditions=str(settings.standard_conditions),
+        flag_thresholds=FlagThresholds(),
+        sources={},
+    )
+
+
 def current(session: Session, settings) -> TeamSettings:
     """The team's settings, falling back to ``settings`` (the environment) key by key."""
     rows = _rows(session)
@@ -146,17 +159,25 @@ def pin_storage_basis(db, settings) -> None:
 
 def standard_conditions_lock(session: Session) -> str | None:
     """Why the standard conditions may no longer change (stored gas volumes), or None."""
-    counts = (
-        ("production month", select(func.count()).select_from(ProductionMonth)),
-        ("volumetric estimate", select(func.count()).select_from(VolumetricEstimate)),
-        ("estimate with a volume", select(func.count()).where(Estimate.giip_best_bscf.is_not(None))),
-        ("lab Bg point", select(func.count()).where(FluidLabPoint.bg_rcf_per_scf.is_not(None))),
+    counts = (  # (one, many, how many)
+        ("production month", "production months", select(func.count()).select_from(ProductionMonth)),
+        ("volumetric estimate", "volumetric estimates", select(func.count()).select_from(VolumetricEstimate)),
+        (
+            "estimate with a volume",
+            "estimates with a volume",
+            select(func.count()).where(Estimate.giip_best_bscf.is_not(None)),
+        ),
+        (
+            "lab Bg point",
+            "lab Bg points",
+            select(func.count()).where(FluidLabPoint.bg_rcf_per_scf.is_not(None)),
+        ),
     )
     held = []
-    for what, stmt in counts:
+    for one, many, stmt in counts:
         n = session.execute(stmt).scalar_one()
         if n:
-            held.append(f"{n:,} {what}{'s' if n != 1 else ''}")
+            held.append(f"{n:,} {one if n == 1 else many}")
     if not held:
         return None
     return (
@@ -218,7 +239,6 @@ def update(session: Session, actor: audit.Actor, settings, values: dict, *, now:
     enters the estimates changed, queue a portfolio recompute.
 
     Raises :class:`TeamSettingsError` (nothing stored) when any value is unacceptable."""
-    from . import jobs  # jobs -> recompute -> this module
 
     before = current(session, settings)
     problems, parsed = {}, {}

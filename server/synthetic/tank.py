@@ -13,7 +13,7 @@ explicitly with substeps of at most 10 days, in one of two forms:
 - pseudo-pressure, q12 = c (m(p2) - m(p1)) [scf/d], c in scf cP/(d psi^2), with the real-gas
   pseudo-pressure m(p) = 2 int p/(mu z) dp [psi^2/cP] (Al-Hussainy, Ramey & Crawford 1966),
   mu from Lee, Gonzalez & Eakin (1966). Tabulated here by the trapezoidal rule on the z table's
-  own grid, independently of the estimators' tables (engine/tanks.py).
+  own grid, independently of the estimators' tables (engine/compartments/multitank.py).
 Aquifers: pot (We = ct Wi (pi - p)) or Fetkovich (1971) pseudo-steady state, stepped
 with the average tank pressure of each step.
 """
@@ -25,7 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import brentq
 
-from ..engine.pvt import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
+from ..engine.pvt.gas import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 from ..engine.units import FT3_PER_BBL, OILFIELD_60F, degR_from_degF
 
 

@@ -30,14 +30,14 @@ from fastapi.security import HTTPBearer
 from sqlalchemy.orm import Session
 
 from ..db.models import Field, User
-from ..services.accounts import allowed_assets
+from ..services.access.accounts import allowed_assets
+from ..services.access.credentials import SessionTimeouts, live_api_token, live_session
+from ..services.access.permissions import Permission, role_permissions, token_permissions
 from ..services.audit import Actor
-from ..services.credentials import SessionTimeouts, live_api_token, live_session
-from ..services.permissions import Permission, role_permissions, token_permissions
-from .deps import SessionDep
+from .deps import UNSAFE, SessionDep
 
 SESSION_COOKIE = "tb_session"
-UNSAFE_METHODS = frozenset({"POST", "PUT", "PATCH", "DELETE"})
+UNSAFE_METHODS = UNSAFE
 _bearer = HTTPBearer(auto_error=False, description="An API token made on the account page")
 
 
@@ -207,7 +207,21 @@ class PermissionCheck:
                 detail=f"{who} does not allow this (needs permission {self.permission.value!r})",
             )
         _check_object_access(request, session, principal)
+        end_dependency_transaction(session)
         return principal
+
+
+def end_dependency_transaction(session) -> None:
+    """Commit what the authentication read and wrote (a last-seen time) before the route runs.
+
+    Each dependency and the route run in separate calls to the thread pool. A transaction
+    holding SQLite's write lock must never wait for a pool thread: if every thread were
+    waiting for that lock (busy timeout), nothing could finish it. So a dependency ends its
+    transaction itself, and the route's (BEGIN IMMEDIATE on unsafe methods) starts and ends
+    within the route's own call and the session's teardown (which FastAPI runs outside the
+    request threads' limit)."""
+    if session.in_transaction():
+        session.commit()
 
 
 _CHECKS = {p: PermissionCheck(p) for p in Permission}
@@ -236,14 +250,14 @@ UserAdmin = Annotated[Principal, Require(Permission.MANAGE_USERS)]
 SettingsAdmin = Annotated[Principal, Require(Permission.MANAGE_SETTINGS)]
 
 
-def optional_principal(
-    request: Request, session: SessionDep
-) -> Principal | None:
+def optional_principal(request: Request, session: SessionDep) -> Principal | None:
     """For public pages that look different when someone is logged in (the login page)."""
     try:
-        return authenticate_request(request, session)
+        principal = authenticate_request(request, session)
     except NotAuthenticatedError:
-        return None
+        principal = None
+    end_dependency_transaction(session)
+    return principal
 
 
 AUTH_ERRORS = {
@@ -294,7 +308,7 @@ def route_permissions(app) -> list[tuple[set[str], str, object, Permission | str
 def document_auth_errors(app) -> None:
     """Add the 401/403 answers to every protected operation of the OpenAPI schema, and
     400/413 to every operation that takes a body."""
-    from .schemas import ErrorRead
+    from .schemas.common import ErrorRead
 
     generate = app.openapi
 

@@ -17,7 +17,7 @@ from fastapi import Query
 from fastapi.exceptions import RequestValidationError
 from pydantic import BeforeValidator
 
-from ..services.data_views import ListFilter, Paging
+from ..services.portfolio.field_data import ListFilter, Paging
 
 DEFAULT_PER_PAGE = 50
 MAX_PER_PAGE = 200
@@ -51,7 +51,8 @@ def _iso_date(v):
         raise ValueError(f"{v!r} is not a calendar date ({exc})") from None
 
 
-IsoDate = Annotated[dt.date | None, BeforeValidator(_iso_date)]
+# "" is "not given" (GET forms send empty fields): the schema says so, as the handlers do.
+IsoDate = Annotated[dt.date | Literal[""] | None, BeforeValidator(_iso_date)]
 Page = Annotated[int, Query(ge=1, le=1_000_000, description="page number, from 1")]
 PerPage = Annotated[
     int,

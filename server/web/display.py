@@ -57,6 +57,7 @@ def _table(system: UnitSystemName, basis: StandardConditions) -> dict[str, _Unit
             "gas_bscf": _Unit(f"Bscf ({b})", 1),
             "gas_mscf": _Unit(f"Mscf ({b})", 0),
             "rate_mmscf_per_day": _Unit(f"MMscf/d ({b})", 2),
+            "rate_mscf_per_day": _Unit(f"Mscf/d ({b})", 0),
             "liquid_stb": _Unit("stb", 0),
             "compressibility_per_psi": _Unit("1/psi", 8),
             "pz_slope_psia_per_bscf": _Unit("psia/Bscf", 2),
@@ -74,6 +75,7 @@ def _table(system: UnitSystemName, basis: StandardConditions) -> dict[str, _Unit
         "gas_bscf": _Unit("10⁶ m³ (15 °C, 101.325 kPa)", 1, 1e9 * m3_per_scf / 1e6),
         "gas_mscf": _Unit("10³ m³ (15 °C, 101.325 kPa)", 1, 1e3 * m3_per_scf / 1e3),
         "rate_mmscf_per_day": _Unit("10³ m³/d (15 °C, 101.325 kPa)", 1, 1e6 * m3_per_scf / 1e3),
+        "rate_mscf_per_day": _Unit("10³ m³/d (15 °C, 101.325 kPa)", 2, 1e3 * m3_per_scf / 1e3),
         "liquid_stb": _Unit("m³", 1, M3_PER_BBL),
         "compressibility_per_psi": _Unit("1/kPa", 9, 1.0 / KPA_PER_PSI),
         "pz_slope_psia_per_bscf": _Unit("kPa per 10⁶ m³", 3, KPA_PER_PSI / (1e9 * m3_per_scf / 1e6)),
@@ -103,6 +105,10 @@ class DisplayUnits:
     def label(self, kind: str) -> str:
         """The unit label of a quantity, e.g. "psia" or "10⁶ m³ (15 °C, 101.325 kPa)"."""
         return self._unit(kind).label
+
+    def short_label(self, kind: str) -> str:
+        """The unit without its standard-conditions basis ("Bscf"), where the basis is said nearby."""
+        return self.label(kind).split(" (")[0]
 
     def value(self, kind: str, stored: float | None) -> float | None:
         """A stored value in display units (None stays None)."""

@@ -13,6 +13,7 @@ from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import JSONResponse, RedirectResponse
 from starlette.exceptions import HTTPException as StarletteHTTPException
+from starlette.routing import Match
 
 log = logging.getLogger(__name__)
 
@@ -48,6 +49,16 @@ def error_response(request: Request, status: int, message: str, extra: dict | No
     """The error response for a request: JSON for the API, an HTML page otherwise."""
     if wants_json(request):
         return JSONResponse({"detail": message, **(extra or {})}, status_code=status)
+    if (
+        getattr(request.state, "team_settings", None) is None
+        and getattr(request.state, "db_session", None) is None
+    ):
+        # The handlers run on the event loop: a database read here would block every request
+        # while it waits for a connection (a full pool made one 30 s wait into many). An error
+        # page shows no stored value, so the environment's settings serve for its header.
+        from ..services.team_settings import from_environment
+
+        request.state.team_settings = from_environment(request.app.state.settings)
     templates = request.app.state.templates
     response = templates.TemplateResponse(
         request,
@@ -57,6 +68,17 @@ def error_response(request: Request, status: int, message: str, extra: dict | No
     )
     response.headers["Cache-Control"] = "no-store"
     return response
+
+
+def allowed_methods(request: Request) -> list[str]:
+    """Every method some route serves at this path (Starlette's own 405 names only the first
+    route whose path matched, so a path served by two routes listed half its methods)."""
+    served = []
+    for method in ("GET", "HEAD", "POST", "PUT", "PATCH", "DELETE"):
+        scope = {**request.scope, "method": method}
+        if any(route.matches(scope)[0] is Match.FULL for route in request.app.router.routes):
+            served.append(method)
+    return served
 
 
 def _redirect(to: str) -> RedirectResponse:
@@ -77,6 +99,8 @@ def install_error_handlers(app: FastAPI) -> None:
         response = error_response(request, exc.status_code, str(exc.detail))
         for k, v in (exc.headers or {}).items():
             response.headers[k] = v
+        if exc.status_code == 405:
+            response.headers["Allow"] = ", ".join(allowed_methods(request))
         return response
 
     @app.exception_handler(RequestValidationError)

@@ -2,12 +2,16 @@
 
 Replaces FastAPI's built-in ``max_body_size`` (whose 413 is plain text): a declared
 Content-Length above the limit is refused before the body is read; a body without
-one is counted as it arrives and refused once it passes the limit.
+one is counted as it arrives and refused once it passes the limit. Also: one file part per
+upload request, and the cleaned name a file is kept under (issue 18).
 """
 
 from __future__ import annotations
 
+import re
+
 from fastapi import HTTPException
+from fastapi.exceptions import RequestValidationError
 from starlette.requests import Request
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
@@ -53,3 +57,29 @@ class UploadLimitMiddleware:
             return message
 
         await self.app(scope, counted, send)
+
+
+async def the_one_file(request: Request, name: str = "file") -> None:
+    """422 unless the form carries exactly one part called ``name`` (two files in one request:
+    which one would be stored is nobody's guess, so neither is)."""
+    parts = (await request.form()).getlist(name)
+    if len(parts) != 1:
+        raise RequestValidationError(
+            [
+                {
+                    "type": "value_error",
+                    "loc": ("body", name),
+                    "msg": f"send exactly one file part named {name!r} (got {len(parts)})",
+                    "input": None,
+                }
+            ]
+        )
+
+
+def clean_filename(raw: str | None, default: str = "upload") -> str:
+    """The name a file is stored and shown under: its base name (no folders, whichever slash),
+    without control characters or line breaks, spaces collapsed, at most 255 characters."""
+    name = re.split(r"[/\\]", raw or "")[-1]
+    name = re.sub(r"[\x00-\x1f\x7f-\x9f\u2028\u2029]+", " ", name)
+    name = re.sub(r"\s+", " ", name).strip().strip(".")
+    return name[:255] or default

@@ -7,23 +7,20 @@ Debian's Chromium driven by Playwright. Never downloads a browser.
 from __future__ import annotations
 
 import shutil
-import socket
-import threading
-import time
 from pathlib import Path
 
 import pytest
-import uvicorn
 
-from server.app import create_app
 from server.db.base import utcnow
 from server.db.migrate import upgrade
 from server.db.session import Database
-from server.services import accounts, jobs
+from server.services.access import accounts
 from server.services.audit import Actor
 from server.services.demo import load_demo
-from server.settings import Settings
+from server.services.jobs import runner
+from tests.factories import add_volumetric_history, make_field
 from tests.web.conftest import TEST_PASSWORD
+from tests.web.live import serving
 
 BROWSER_USERS = {role: f"browser-{role}" for role in ("viewer", "engineer", "approver", "admin")}
 
@@ -88,12 +85,6 @@ def page(anon_page, live_server):
     return anon_page
 
 
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
 @pytest.fixture(scope="session")
 def live_server(tmp_path_factory):
     url = f"sqlite:///{tmp_path_factory.mktemp('live') / 'live.sqlite3'}"
@@ -101,28 +92,15 @@ def live_server(tmp_path_factory):
     db = Database(url)
     with db.session() as s:
         load_demo(s)
-    jobs.drain(db)
+    runner.drain(db)
     with db.session() as s:
         for role, username in BROWSER_USERS.items():
             accounts.create_user(
                 s, Actor(None, "test"), username=username, role=role, password=TEST_PASSWORD, now=utcnow()
             )
     db.dispose()
-    port = _free_port()
-    settings = Settings(environment="test", secret_key="b" * 40, database_url=url, port=port)
-    server = uvicorn.Server(
-        uvicorn.Config(create_app(settings), host="127.0.0.1", port=port, log_level="warning")
-    )
-    thread = threading.Thread(target=server.run, daemon=True)
-    thread.start()
-    deadline = time.time() + 20
-    while not server.started:
-        if time.time() > deadline:
-            raise RuntimeError("live server did not start")
-        time.sleep(0.05)
-    yield f"http://127.0.0.1:{port}"
-    server.should_exit = True
-    thread.join(timeout=10)
+    with serving(url, "b") as base_url:
+        yield base_url
 
 
 @pytest.fixture
@@ -139,3 +117,20 @@ def console_errors(anon_page):
 def screenshot_dir():
     SCREENSHOTS.mkdir(parents=True, exist_ok=True)
     return SCREENSHOTS
+
+
+@pytest.fixture
+def server_without_worker(tmp_path):
+    """A live app whose jobs are run by nobody but the test (job_runner=external)."""
+    url = f"sqlite:///{tmp_path / 'nobody.sqlite3'}"
+    upgrade(url)
+    db = Database(url)
+    with db.session() as s:
+        for name in ("Alpha", "Bravo", "Charlie"):
+            add_volumetric_history(s, make_field(s, name=name))
+        accounts.create_user(
+            s, Actor(None, "test"), username="runner", role="engineer", password=TEST_PASSWORD, now=utcnow()
+        )
+    with serving(url, "c", job_runner="external") as base_url:
+        yield base_url, db
+    db.dispose()

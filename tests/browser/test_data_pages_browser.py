@@ -42,7 +42,7 @@ def test_field_data_pages(page, live_server, console_errors, screenshot_dir):
     assert page.locator("#showing-top").inner_text() == "Showing 1–36 of 36 production months, page 1 of 1"
     months = set(page.locator("#production-table tbody td:first-child").all_inner_texts())
     assert months == {f"2020-{m:02d}" for m in range(1, 13)}
-    assert re.search(r"gas [\d,.]+ Bscf", page.locator("#production-totals").inner_text())
+    assert re.search(r"separator gas [\d,.]+ Bscf", page.locator("#production-totals").inner_text())
 
     _data_link(page, "Fluid and PVT")
     page.wait_for_selector("#chart-z[data-drawn='true']", timeout=15000)

@@ -64,7 +64,8 @@ def test_portfolio_filter_sort_chart(page, live_server, console_errors, screensh
     assert (
         not page.locator("header.topbar").is_visible() and not page.locator("#portfolio-filters").is_visible()
     )
-    assert page.locator(".table-scroll").evaluate("e => getComputedStyle(e).overflowX") == "visible"
+    scroll = page.locator("#portfolio-table").locator("xpath=..")  # every table has a scroll box now
+    assert scroll.evaluate("e => getComputedStyle(e).overflowX") == "visible"
     colours = page.locator("#portfolio-table thead th").first.evaluate(
         "e => [getComputedStyle(e).color, getComputedStyle(e).backgroundColor]"
     )

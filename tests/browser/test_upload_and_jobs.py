@@ -1,21 +1,8 @@
 """In Chromium: check a file, read the preview, confirm it; recompute the portfolio and watch
 the progress bar fill through server-sent events (no inline scripts: the page's CSP)."""
 
-import threading
-import time
-
-import pytest
-import uvicorn
-
-from server.app import create_app
-from server.db.base import utcnow
-from server.db.migrate import upgrade
-from server.db.session import Database
-from server.services import accounts, jobs
-from server.services.audit import Actor
-from server.settings import Settings
-from tests.browser.conftest import TEST_PASSWORD, _free_port, log_in
-from tests.factories import add_volumetric_history, make_field
+from server.services.jobs import runner
+from tests.browser.conftest import log_in
 
 
 def test_upload_preview_then_store(page, live_server, console_errors, screenshot_dir, tmp_path):
@@ -48,36 +35,6 @@ def test_portfolio_recompute_progress(page, live_server, console_errors, screens
     assert console_errors == []
 
 
-@pytest.fixture
-def server_without_worker(tmp_path):
-    """A live app whose jobs are run by nobody but the test (job_runner=external)."""
-    url = f"sqlite:///{tmp_path / 'nobody.sqlite3'}"
-    upgrade(url)
-    db = Database(url)
-    with db.session() as s:
-        for name in ("Alpha", "Bravo", "Charlie"):
-            add_volumetric_history(s, make_field(s, name=name))
-        accounts.create_user(
-            s, Actor(None, "test"), username="runner", role="engineer", password=TEST_PASSWORD, now=utcnow()
-        )
-    port = _free_port()
-    settings = Settings(
-        environment="test", secret_key="c" * 40, database_url=url, port=port, job_runner="external"
-    )
-    server = uvicorn.Server(
-        uvicorn.Config(create_app(settings), host="127.0.0.1", port=port, log_level="warning")
-    )
-    thread = threading.Thread(target=server.run, daemon=True)
-    thread.start()
-    deadline = time.time() + 20
-    while not server.started and time.time() < deadline:
-        time.sleep(0.05)
-    yield f"http://127.0.0.1:{port}", db
-    server.should_exit = True
-    thread.join(timeout=10)
-    db.dispose()
-
-
 def test_progress_bar_follows_a_running_job(anon_page, server_without_worker, console_errors):
     base, db = server_without_worker
     page = anon_page
@@ -86,7 +43,7 @@ def test_progress_bar_follows_a_running_job(anon_page, server_without_worker, co
     page.click("#recompute-all")
     page.wait_for_selector("#job[data-finished='false']")
     assert page.locator("#job-status").inner_text() == "queued"
-    jobs.drain(db)  # a worker elsewhere does the work; the page learns of it by server-sent events
+    runner.drain(db)  # a worker elsewhere does the work; the page learns of it by server-sent events
     page.wait_for_selector("#job[data-finished='true']", timeout=30000)
     assert page.locator("#job-status").inner_text() == "done"
     assert page.locator("#job-progress").get_attribute("value") == "3"

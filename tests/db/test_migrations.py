@@ -61,3 +61,234 @@ def test_check_constraints_reject_impossible_values(fresh_database_url):
         with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
             c.execute(sa.text(stmt))
     eng.dispose()
+
+
+def test_headline_basis_migration_replaces_the_aquifer_choice_and_keeps_the_line(fresh_database_url):
+    """0009w: the aquifer choice (which changed no number) becomes the basis choice,
+    "automatic" for every field; an estimate stored before it was the straight line, so its
+    line_giip_* columns are its giip_* columns (none for a refused estimate). Downgrade
+    restores aquifer_model ("none")."""
+    upgrade(fresh_database_url, "0009f")
+    eng = sa.create_engine(fresh_database_url)
+    field_sql = (
+        'INSERT INTO field (id, asset_id, name, datum_depth_ft, "reservoir_temperature_degF", '
+        "initial_pressure_psia, abandonment_pressure_psia, description, created_at, updated_at) "
+        "VALUES (1, 1, 'F', 1000, 150, 3000, 500, '', CURRENT_TIMESTAMP, CURRENT_TIMESTAMP)"
+    )
+    estimate_sql = (
+        "INSERT INTO estimate (id, field_id, method, status, message, giip_low_bscf, giip_best_bscf, "
+        "giip_high_bscf, cumulative_gas_bscf, flags, detail, inputs_fingerprint, engine_version, "
+        "computed_at) VALUES (:id, 1, 'single_tank', :status, '', :lo, :best, :hi, 1.0, '[]', '{}', "
+        "'x', '1', CURRENT_TIMESTAMP)"
+    )
+    try:
+        with eng.begin() as c:
+            c.execute(sa.text("INSERT INTO asset (id, name, basin) VALUES (1, 'A', 'B')"))
+            c.execute(sa.text(field_sql))
+            c.execute(
+                sa.text(
+                    "INSERT INTO field_analysis_settings (field_id, z_method, use_lab_table, "
+                    "datum_correction, condensate_correction, overpressure_mode, aquifer_model, "
+                    "anchor_initial, options, updated_at) VALUES (1, 'dak', true, true, true, 'off', "
+                    "'aquifer_fetkovich', false, '{}', CURRENT_TIMESTAMP)"
+                )
+            )
+            c.execute(
+                sa.text(estimate_sql), {"id": 1, "status": "ok", "lo": 90.0, "best": 100.0, "hi": 111.0}
+            )
+            c.execute(
+                sa.text(estimate_sql), {"id": 2, "status": "refused", "lo": None, "best": None, "hi": None}
+            )
+        upgrade(fresh_database_url)
+        with eng.connect() as c:
+            assert c.execute(
+                sa.text("SELECT basis_model, basis_reason FROM field_analysis_settings")
+            ).one() == (
+                "automatic",
+                "",
+            )
+            rows = c.execute(
+                sa.text(
+                    "SELECT id, line_giip_low_bscf, line_giip_best_bscf, line_giip_high_bscf, basis_model "
+                    "FROM estimate ORDER BY id"
+                )
+            ).all()
+            assert [tuple(r) for r in rows] == [(1, 90.0, 100.0, 111.0, None), (2, None, None, None, None)]
+        downgrade(fresh_database_url, "0008")
+        with eng.connect() as c:
+            assert (
+                c.execute(sa.text("SELECT aquifer_model FROM field_analysis_settings")).scalar_one() == "none"
+            )
+            cols = {col["name"] for col in sa.inspect(c).get_columns("estimate")}
+            assert not {"basis_model", "line_giip_best_bscf"} & cols
+    finally:
+        eng.dispose()
+
+
+def test_0009f_wellstream_gravity_keeps_fluids_and_checks_the_gravities(fresh_database_url):
+    import pytest
+
+    from server.db.session import make_engine
+
+    upgrade(fresh_database_url, "0008")
+    eng = make_engine(fresh_database_url)
+    field = (
+        'INSERT INTO field (id, asset_id, name, datum_depth_ft, "reservoir_temperature_degF", '
+        "initial_pressure_psia, abandonment_pressure_psia, description, created_at, updated_at) "
+        "VALUES ({id}, 1, 'F{id}', 10000, 200, 5000, 800, '', CURRENT_TIMESTAMP, CURRENT_TIMESTAMP)"
+    )
+    fluid = (
+        "INSERT INTO fluid (field_id, gas_gravity, y_co2_frac, y_h2s_frac, y_n2_frac{extra}) "
+        "VALUES ({id}, {gg}, 0, 0, 0{more})"
+    )
+    with eng.begin() as c:
+        c.execute(sa.text("INSERT INTO asset (id, name, basin) VALUES (1, 'A', 'B')"))
+        for i in range(1, 6):
+            c.execute(sa.text(field.format(id=i)))
+        c.execute(sa.text(fluid.format(id=1, gg=0.68, extra=", condensate_api", more=", 50")))
+    eng.dispose()
+    upgrade(fresh_database_url)
+    eng = make_engine(fresh_database_url)
+    with eng.begin() as c:  # the stored fluid is kept as it was, with no well-stream gravity
+        row = c.execute(sa.text("SELECT gas_gravity, condensate_api, wellstream_gravity FROM fluid")).one()
+        assert tuple(row) == (0.68, 50.0, None)
+        # only a well-stream gravity; both
+        c.execute(sa.text(fluid.format(id=2, gg="NULL", extra=", wellstream_gravity", more=", 0.99")))
+        c.execute(sa.text(fluid.format(id=3, gg=0.68, extra=", wellstream_gravity", more=", 0.99")))
+    bad = [
+        fluid.format(id=4, gg="NULL", extra="", more=""),  # no gravity at all
+        fluid.format(id=4, gg="NULL", extra=", wellstream_gravity", more=", 2.5"),  # out of range
+        fluid.format(id=4, gg=0.5, extra=", wellstream_gravity", more=", 0.9"),  # separator out of range
+    ]
+    for stmt in bad:
+        with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
+            c.execute(sa.text(stmt))
+    eng.dispose()
+    # Going back would lose the meaning of the fluid described only by its well stream: refused,
+    # nothing changed; without it the downgrade goes through and keeps the separator gravities.
+    with pytest.raises(RuntimeError, match="1 fluid description"):
+        downgrade(fresh_database_url, "0008")
+    eng = make_engine(fresh_database_url)
+    with eng.begin() as c:
+        assert c.execute(sa.text("SELECT count(*) FROM fluid")).scalar_one() == 3
+        c.execute(sa.text("DELETE FROM fluid WHERE gas_gravity IS NULL"))
+    eng.dispose()
+    downgrade(fresh_database_url, "0008")
+    eng = make_engine(fresh_database_url)
+    with eng.begin() as c:
+        assert sorted(c.execute(sa.text("SELECT field_id, gas_gravity FROM fluid")).all()) == [
+            (1, 0.68),
+            (3, 0.68),
+        ]
+    with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
+        c.execute(sa.text(fluid.format(id=4, gg="NULL", extra="", more="")))
+    eng.dispose()
+
+
+def test_0011r_reserves_tables_check_bookings_and_go_back(fresh_database_url):
+    """The booking's class and status are PRMS pairs; an override needs a reason; downgrade drops it all."""
+    import pytest
+
+    from server.db.session import make_engine
+
+    upgrade(fresh_database_url)
+    eng = make_engine(fresh_database_url)
+    review = (
+        "INSERT INTO reserves_review (id, name, effective_date, status, revision, reopen_reason, "
+        "created_by_name, created_at, submitted_by_name, approved_by_name, approval_comment) "
+        "VALUES (1, 'R', '2025-12-31', 'draft', 1, '', '', CURRENT_TIMESTAMP, '', '', '')"
+    )
+    snap = (
+        "INSERT INTO reserves_review_field (id, review_id, field_id, field_name, asset_id, asset_name, "
+        "estimate_status, inputs_fingerprint, engine_version, basis_model, basis_title, basis_source, "
+        "volume_source, produced_gas_bscf, produced_condensate_stb, flags, has_alert, snapshot_at) "
+        "VALUES ({id}, 1, {id}, 'F{id}', 1, 'A', 'ok', '', '', '', '', '', 'basis', 0, 0, '[]', false, "
+        "CURRENT_TIMESTAMP)"
+    )
+    booking = (
+        "INSERT INTO reserves_booking (review_field_id, resource_class, status, override_best_bscf, "
+        "override_reason, justification, updated_by_name) "
+        "VALUES ({rf}, '{cls}', '{st}', {ov}, '{why}', '', '')"
+    )
+    with eng.begin() as c:
+        c.execute(sa.text(review))
+        for i in range(1, 6):
+            c.execute(sa.text(snap.format(id=i)))
+        c.execute(sa.text(booking.format(rf=1, cls="reserves", st="undeveloped", ov=3.0, why="new log")))
+        pending = booking.format(rf=2, cls="contingent", st="development_pending", ov="NULL", why="")
+        c.execute(sa.text(pending))
+    bad = [
+        booking.format(rf=3, cls="reserves", st="development_pending", ov="NULL", why=""),  # wrong class
+        booking.format(rf=3, cls="contingent", st="developed_producing", ov="NULL", why=""),
+        booking.format(rf=3, cls="reserves", st="developed_producing", ov=2.0, why=""),  # no reason
+        booking.format(rf=1, cls="reserves", st="developed_producing", ov="NULL", why=""),  # second booking
+    ]
+    for stmt in bad:
+        with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
+            c.execute(sa.text(stmt))
+    eng.dispose()
+    downgrade(fresh_database_url, "0009s")
+    assert not {t for t in _tables(fresh_database_url) if t.startswith("reserves_")}
+    upgrade(fresh_database_url)
+    assert "reserves_booking" in _tables(fresh_database_url)
+
+
+def test_forecast_tables_refuse_impossible_values(fresh_database_url):
+    """well_test, field_plan and planned_well keep the upload checks' physical limits
+    (flowing below static pressure, uptime in (0, 1], n in [0.5, 1], compression complete
+    and lower than the minimum flowing pressure)."""
+    import pytest
+
+    from server.db.session import make_engine
+
+    upgrade(fresh_database_url)
+    eng = make_engine(fresh_database_url)
+    now = "CURRENT_TIMESTAMP"
+    with eng.begin() as c:
+        c.execute(sa.text("INSERT INTO asset (id, name, basin) VALUES (1, 'A', 'B')"))
+        c.execute(
+            sa.text(
+                'INSERT INTO field (id, asset_id, name, datum_depth_ft, "reservoir_temperature_degF", '
+                "initial_pressure_psia, abandonment_pressure_psia, description, created_at, updated_at) "
+                f"VALUES (1, 1, 'F', 1000, 150, 3000, 500, '', {now}, {now})"
+            )
+        )
+        c.execute(sa.text("INSERT INTO well (id, field_id, name) VALUES (1, 1, 'W-1')"))
+    test = (
+        "INSERT INTO well_test (well_id, test_date, rate_mscf_per_day, flowing_bhp_psia, "
+        "static_pressure_psia, created_at) VALUES (1, '2020-01-01', {q}, {pwf}, {ps}, " + now + ")"
+    )
+    plan = (
+        "INSERT INTO field_plan (field_id, plateau_rate_mscf_per_day, uptime_frac, min_flowing_bhp_psia, "
+        "compression_start_date, compression_min_flowing_bhp_psia, economic_limit_mscf_per_day, "
+        "licence_end_date, deliverability_exponent, updated_at) "
+        "VALUES (1, {q}, {up}, {pwf}, {cd}, {cp}, {el}, NULL, {n}, " + now + ")"
+    )
+    planned = (
+        "INSERT INTO planned_well (field_id, name, start_date, c_mscf_per_day_psi2n, n, created_at) "
+        "VALUES (1, 'P-1', '2030-01-01', {c}, {n}, " + now + ")"
+    )
+    good_plan = dict(q=50000, up=0.95, pwf=800, cd="NULL", cp="NULL", el=500, n=0.85)
+    bad = [
+        test.format(q=1000, pwf=2500, ps=2400),  # flowing above static
+        test.format(q=0, pwf=1500, ps=2400),  # no rate
+        test.format(q=1000, pwf=-1, ps=2400),
+        plan.format(**(good_plan | {"up": 0})),
+        plan.format(**(good_plan | {"up": 1.2})),
+        plan.format(**(good_plan | {"n": 0.4})),
+        plan.format(**(good_plan | {"el": -1})),
+        plan.format(**(good_plan | {"cd": "'2030-01-01'"})),  # compression date without its pressure
+        plan.format(**(good_plan | {"cd": "'2030-01-01'", "cp": 900})),  # compression not lower
+        planned.format(c=0, n=0.8),
+        planned.format(c=0.01, n=1.1),
+    ]
+    for stmt in bad:
+        with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
+            c.execute(sa.text(stmt))
+    with eng.begin() as c:  # the same rows within limits are stored
+        c.execute(sa.text(test.format(q=1000, pwf=1500, ps=2400)))
+        c.execute(sa.text(plan.format(**(good_plan | {"cd": "'2030-01-01'", "cp": 300}))))
+        c.execute(sa.text(planned.format(c=0.01, n=0.8)))
+    with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:  # one plan per field
+        c.execute(sa.text(plan.format(**good_plan)))
+    eng.dispose()

@@ -13,8 +13,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from server.engine.inputs import AnalysisChoices, FieldInputs
-from server.engine.prepare import PreparedData, prepare
-from server.engine.pvt import GasFluid
+from server.engine.prepare.points import PreparedData, prepare
+from server.engine.pvt.gas import GasFluid
 from server.synthetic.aquifer import VehAquifer, simulate_veh
 from server.synthetic.tank import TankHistory, TankSpec, simulate
 

@@ -10,7 +10,7 @@ import numpy as np
 from scipy.interpolate import CubicSpline
 
 from server.engine.inputs import FieldInputs
-from server.engine.pvt import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
+from server.engine.pvt.gas import GasFluid, gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
 
 GAS_065 = GasFluid(0.65)
 MONTH_DAYS = 30.4375
@@ -152,10 +152,10 @@ def surveys_from_history(hist, wells, *, pi_psia, noise_psi, seed, end_days=None
 
 
 def demo_field_inputs(name: str, *, spec=None, seed: int | None = None) -> FieldInputs:
-    """A demo field's inputs built the way services/recompute.py builds them from rows,
+    """A demo field's inputs built the way services/jobs/recompute.py builds them from rows,
     without a database (the service path is tested separately). ``spec`` and ``seed`` give
     a variant (as the portfolio benchmark makes them) instead of the demo's own field."""
-    from server.engine.volumetrics import volumetric_range
+    from server.engine.volumetrics.estimate import volumetric_range
     from server.services.demo import PORTFOLIO, build_field_history
     from server.services.timebase import days_from_date, month_end_exclusive
 

@@ -12,7 +12,7 @@ import dataclasses
 import numpy as np
 
 from server.engine.inputs import AnalysisChoices, FieldInputs
-from server.engine.pvt import GasFluid, z_factor
+from server.engine.pvt.gas import GasFluid, z_factor
 from server.synthetic.tank import TankSpec, gas_column_pressure_psia, simulate
 
 MONTH_DAYS = 30.4375

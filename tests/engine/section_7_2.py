@@ -9,7 +9,7 @@ Gas: γ 0.65 (Sutton), DAK z, 200 degF, pi = 5000 psia.
 
 import numpy as np
 
-from server.engine.pvt import GasFluid
+from server.engine.pvt.gas import GasFluid
 
 FLUID = GasFluid(0.65)
 T_DEGF = 200.0

@@ -9,7 +9,7 @@ import pytest
 from server.engine.analysis import CAUTION, analyse_field, analyse_prepared, screened_data
 from server.engine.errors import InputRangeError
 from server.engine.inputs import AnalysisChoices
-from server.engine.prepare import prepare
+from server.engine.prepare.points import prepare
 from tests.engine.forward_histories import history_inputs, with_choices
 
 
@@ -22,9 +22,13 @@ def test_summary_fields_come_from_the_estimate_with_named_kinds(base):
     a = analyse_field(base)
     g = a.pz.giip_range_bscf
     assert a.status == "ok" and a.method == "pz-ols"
-    summary = (a.giip_low_bscf, a.giip_best_bscf, a.giip_high_bscf)
-    assert summary == (g.bootstrap.p90, a.pz.giip_bscf, g.bootstrap.p10)
-    assert a.giip_range_kind == "P90-P10 of a residual bootstrap (80 % range)"
+    line = (a.line_giip_low_bscf, a.line_giip_best_bscf, a.line_giip_high_bscf)
+    assert line == (g.bootstrap.p90, a.pz.giip_bscf, g.bootstrap.p10)
+    # The headline's basis is the line here; its booked range adds model spread and systematic
+    # input errors to the bootstrap's scatter, so it is wider on both sides.
+    assert a.basis.model == "single_tank" and a.giip_best_bscf == a.pz.giip_bscf
+    assert a.giip_low_bscf < g.bootstrap.p90 and a.giip_high_bscf > g.bootstrap.p10
+    assert a.giip_range_kind.startswith("P90-P10: survey scatter")
     assert (a.giip_ci_low_bscf, a.giip_ci_high_bscf) == (g.ci_fieller.low, g.ci_fieller.high)
     assert a.giip_ci_kind == "Fieller 95 % confidence interval"
     assert a.eur_bscf == a.pz.eur_bscf and a.remaining_bscf == a.pz.remaining_bscf
@@ -59,8 +63,8 @@ def test_choices_are_honoured(base):
     g90, g95 = level.pz.giip_range_bscf.ci_fieller, analyse_field(base).pz.giip_range_bscf.ci_fieller
     assert g95.low < g90.low < g90.high < g95.high
     off = analyse_field(with_choices(base, bootstrap_samples=0))
-    assert off.giip_range_kind == "Fieller 95 % confidence interval"
-    assert off.giip_low_bscf == off.giip_ci_low_bscf
+    assert off.giip_ci_kind == "Fieller 95 % confidence interval"
+    assert off.line_giip_low_bscf == off.giip_ci_low_bscf
     poor = dataclasses.replace(base, survey_quality=("poor",) + base.survey_quality[1:])
     assert analyse_field(poor).method == "pz-wls"
     assert analyse_field(with_choices(poor, weighting="none")).method == "pz-ols"
@@ -73,7 +77,9 @@ def test_overpressure_modes_keep_the_plain_line_for_comparison():
     ce = {"overpressure_mode": "given", "effective_compressibility_per_psi": 14.333e-6}
     given = analyse_field(with_choices(inputs, **ce))
     assert given.method == "pz-ols-ce-given" and given.pz.ce_per_psi == 14.333e-6
-    assert given.pz_uncorrected.giip_bscf == pytest.approx(plain.giip_best_bscf)
+    assert given.pz_uncorrected.giip_bscf == pytest.approx(plain.line_giip_best_bscf)
+    assert given.basis.model == "tank_ce" and given.basis.source == "engineer"
+    assert given.giip_best_bscf == pytest.approx(given.pz.giip_bscf)
     p = given.prepared.points[3]
     corrected = p.pz_psia * (1 - 14.333e-6 * (9000.0 - p.p_datum_psia))
     assert given.pz.points[3].corrected_pz_psia == pytest.approx(corrected)
@@ -101,7 +107,7 @@ def test_refusal_keeps_the_prepared_points(base):
 def test_analyse_prepared_is_the_same_as_analyse_field(base):
     a = analyse_field(base)
     b = analyse_prepared(prepare(base), AnalysisChoices())
-    assert a.giip_best_bscf == b.giip_best_bscf and a.giip_low_bscf == b.giip_low_bscf
+    assert a.line_giip_best_bscf == b.giip_best_bscf and a.line_giip_low_bscf == b.giip_low_bscf
 
 
 def test_a_non_finite_point_is_named(base):

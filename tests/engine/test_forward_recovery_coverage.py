@@ -7,7 +7,7 @@ Fieller and anchored 95 % intervals cover the true G in 95 % of replicates, +/- 
 come from the independent forward simulator (server/synthetic/tank.py, volumetric tank,
 G = 100 Bscf); noise is added to p/z as in the reference's experiment.
 
-The bootstrap P90-P10 range is an 80 % range; with residuals rescaled by t/z (pz.py) it
+The bootstrap P90-P10 range is an 80 % range; with residuals rescaled by t/z (engine/tank/pz_estimate.py) it
 should cover about 80 % of the time. Fitted-ce intervals are asymptotic (nonlinear
 least squares) and are checked on fewer replicates with a wider tolerance.
 """
@@ -15,8 +15,8 @@ least squares) and are checked on fewer replicates with a wider tolerance.
 import numpy as np
 import pytest
 
-from server.engine.pvt import GasFluid, z_factor
-from server.engine.pz import estimate_pz
+from server.engine.pvt.gas import GasFluid, z_factor
+from server.engine.tank.pz_estimate import estimate_pz
 from server.synthetic.tank import TankSpec, simulate
 
 FLUID = GasFluid(0.65)

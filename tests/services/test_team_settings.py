@@ -7,10 +7,12 @@ import pytest
 from sqlalchemy import select
 
 from server.db.models import AuditEvent, Estimate, Field, Job, TeamSetting
-from server.engine.flags import FlagThresholds
+from server.engine.thresholds import FlagThresholds
 from server.engine.units import ISO_15C, OILFIELD_60F
-from server.services import audit, jobs, team_settings
-from server.services.recompute import load_field_inputs, recompute_field
+from server.services import audit, team_settings
+from server.services.jobs import queue as jobs
+from server.services.jobs import runner
+from server.services.jobs.recompute import load_field_inputs, recompute_field
 from server.settings import Settings
 from tests.factories import add_volumetric_history, field_with_estimate, make_field
 
@@ -108,7 +110,7 @@ def test_recompute_writes_new_estimates_with_the_new_thresholds(db, env):
         first = s.execute(select(Estimate).where(Estimate.field_id == fid)).scalar_one()
         assert "data_gaps" not in {f["code"] for f in first.flags}
         out = team_settings.update(s, ADMIN, env, {"threshold.survey_gap_days": 60})
-    jobs.drain(db)
+    runner.drain(db)
     with db.session() as s:
         rows = (
             s.execute(select(Estimate).where(Estimate.field_id == fid).order_by(Estimate.id)).scalars().all()

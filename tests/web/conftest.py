@@ -18,8 +18,8 @@ from fastapi.testclient import TestClient
 from server.app import create_app
 from server.db.base import utcnow
 from server.db.models import User, UserAsset
-from server.services import credentials
-from server.services.passwords import hash_password
+from server.services.access import credentials
+from server.services.access.passwords import hash_password
 from server.settings import Settings
 from server.web.auth import SESSION_COOKIE
 

@@ -9,7 +9,8 @@ import pytest
 from sqlalchemy import select
 
 from server.db.models import Estimate, PressureSurvey
-from server.services import jobs
+from server.services.jobs import queue as jobs
+from server.services.jobs import runner
 from tests.factories import add_volumetric_history, make_field
 
 # A fixed scatter (psi) on the noise-free surveys, so that every survey moves the fit a little
@@ -27,7 +28,7 @@ def fid(db):
             sv.pressure_psia += dp
         jobs.enqueue_field_recompute(s, [f.id], reason="test setup")
         field_id = f.id
-    jobs.drain(db)
+    runner.drain(db)
     return field_id
 
 

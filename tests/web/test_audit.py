@@ -77,7 +77,7 @@ def test_user_and_token_changes_are_recorded_without_secrets(db, admin_client, c
     assert all(e.actor == "admin-test" for e in events)
     assert events[0].after["role"] == "viewer"
     assert events[2].before == {"role": "viewer"} and events[2].after == {"role": "engineer"}
-    assert events[1].after == {"password": "reset to a one-time password"}
+    assert events[1].after == {"password": "reset to a one-time password", "api_tokens_revoked": 0}
     with db.session() as s:
         digest = s.get(User, uid).password_hash
     for e in _events(db):

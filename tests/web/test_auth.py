@@ -9,7 +9,7 @@ from fastapi.testclient import TestClient
 from sqlalchemy import select
 
 from server.db.models import AuthSession, User
-from server.services import accounts
+from server.services.access import accounts
 from server.services.audit import Actor
 from server.web.auth import SESSION_COOKIE
 from tests.web.conftest import BASE_URL, TEST_PASSWORD, make_user
@@ -241,7 +241,7 @@ def test_guessing_across_accounts_is_slowed_per_address(db, app, anon_client):
 def test_create_user_refuses_weak_passwords_and_bad_names(db):
     import pytest
 
-    from server.services.passwords import PasswordPolicyError
+    from server.services.access.passwords import PasswordPolicyError
 
     with db.session() as s:
         with pytest.raises(PasswordPolicyError, match="commonly used"):

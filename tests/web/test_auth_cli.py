@@ -13,7 +13,7 @@ from server import cli
 from server.db.migrate import upgrade
 from server.db.models import Asset, AuditEvent, User
 from server.db.session import Database
-from server.services.passwords import verify_password
+from server.services.access.passwords import verify_password
 
 GOOD = "cobalt-orchard-lantern-62"
 
@@ -88,11 +88,30 @@ def test_create_user_limited_to_an_asset_and_set_password(cli_db, monkeypatch):
     assert verify_password(_user(cli_db, "carol").password_hash, "another-cobalt-river-71")
 
 
-def test_first_run_prints_a_one_time_password_once(cli_db, capsys):
-    cli._first_admin(cli_db)
-    out = capsys.readouterr().out
-    password = out.split("one-time password:")[1].split()[0]
+def test_first_admin_is_made_once(cli_db):
+    password = cli._first_admin(str(cli_db.engine.url))
     admin = _user(cli_db, "admin")
     assert admin.must_change_password and verify_password(admin.password_hash, password)
-    cli._first_admin(cli_db)
-    assert capsys.readouterr().out == ""  # not again, and no password is stored in clear anywhere
+    assert cli._first_admin(str(cli_db.engine.url)) is None  # not again: no password is kept in clear
+
+
+def test_the_banner_is_a_frame_that_says_how_to_replace_a_lost_password():
+    lines = cli.first_admin_banner("http://127.0.0.1:8001/", "abcde-fghij").splitlines()
+    assert lines[0] == lines[-1] and set(lines[0]) == {"+", "-"}
+    assert {len(line) for line in lines} == {len(lines[0])}  # every line as wide as the frame
+    assert all(line.startswith("|") and line.endswith("|") for line in lines[1:-1])
+    text = "\n".join(lines)
+    assert "abcde-fghij" in text and "http://127.0.0.1:8001/" in text
+    assert "tankbook set-password admin" in text
+
+
+def test_demo_no_longer_prints_a_password_in_its_output(cli_db, capsys):
+    assert cli.main(["demo", "--if-empty"]) == 0
+    assert "password" not in capsys.readouterr().out
+    assert _user(cli_db, "admin") is None  # `serve --first-admin` makes it, after the server starts
+    # the demo's reserves reviews were prepared and approved by two accounts without a password
+    engineer, approver = _user(cli_db, "demo.engineer"), _user(cli_db, "demo.approver")
+    assert engineer.password_hash is None and approver.password_hash is None
+    assert (engineer.role, approver.role) == ("engineer", "approver")
+    assert cli._first_admin(str(cli_db.engine.url))  # nobody can log in yet: the admin is made
+    assert cli._first_admin(str(cli_db.engine.url)) is None

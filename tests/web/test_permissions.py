@@ -9,17 +9,18 @@ from fastapi.routing import APIRoute
 from sqlalchemy import func, select
 
 from server.db.models import PressureSurvey
-from server.services.permissions import ROLE_PERMISSIONS, Permission
+from server.services.access.permissions import ROLE_PERMISSIONS, Permission
 from server.web.auth import Public, route_permissions
 from tests.factories import make_field
 
-# Routes anyone may reach: logging in, static assets, the health probe, the favicon, plotly.
+# Routes anyone may reach: logging in, static assets (content-hashed, with the chart library), the
+# health probe, the favicon.
 PUBLIC = {
     ("GET", "/login"),
     ("POST", "/login"),
     ("GET", "/api/health"),
     ("GET", "/favicon.ico"),
-    ("GET", "/vendor/plotly.min.js"),
+    ("GET", "/assets/{digest}/{name:path}"),
 }
 PUBLIC_MOUNTS = {"/static"}
 
@@ -80,7 +81,8 @@ def test_roles_are_cumulative():
 
 
 ROWS = {"rows": [{"field": "Matrix", "well": "W-1", "survey_date": "2012-01-15", "pressure_psia": 4000}]}
-DATA_PAGES = ("wells", "surveys", "production", "fluid", "volumetric")  # web/data_pages.py, api_data.py
+# web/pages/field_data.py, web/api/field_data.py
+DATA_PAGES = ("wells", "surveys", "production", "fluid", "volumetric")
 # (method, path, body) -> the outcome for anonymous, viewer, engineer, approver, admin.
 # "ok": 2xx, "login": a page redirects to the login page, 401: the API refuses, 403: not allowed.
 MATRIX = [
@@ -88,6 +90,8 @@ MATRIX = [
     (("GET", "/fields/{fid}", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/portfolio.csv", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/portfolio.xlsx", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio-profiles.csv", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/portfolio-profiles.xlsx", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/upload", None), ("login", 403, "ok", "ok", "ok")),
     (("GET", "/account", None), ("login", "ok", "ok", "ok", "ok")),
     (("POST", "/account/units", None), ("login", "redirect", "redirect", "redirect", "redirect")),
@@ -104,8 +108,14 @@ MATRIX = [
     *((("GET", f"/api/fields/{{fid}}/{d}", None), (401, "ok", "ok", "ok", "ok")) for d in DATA_PAGES),
     # the field page's work: an empty form passes the permission check and is refused (422)
     (("POST", "/fields/{fid}/choices", None), ("login", 403, 422, 422, 422)),
+    (("POST", "/fields/{fid}/plan", None), ("login", 403, 422, 422, 422)),
+    (("GET", "/api/fields/{fid}/plan", None), (401, "ok", "ok", "ok", "ok")),
+    (("PUT", "/api/fields/{fid}/plan", {"uptime_frac": 0.9}), (401, 403, "ok", "ok", "ok")),
+    (("GET", "/api/fields/{fid}/forecast", None), (401, "ok", "ok", "ok", "ok")),
     (("POST", "/fields/{fid}/notes", None), ("login", 403, 422, 422, 422)),
     (("POST", "/fields/{fid}/surveys/1/exclusion", None), ("login", 403, 422, 422, 422)),
+    (("POST", "/fields/{fid}/fluid", None), ("login", 403, 422, 422, 422)),
+    (("PATCH", "/api/fields/{fid}/fluid", {"condensate_api": None}), (401, 403, "ok", "ok", "ok")),
     (("GET", "/api/fields/{fid}/choices", None), (401, "ok", "ok", "ok", "ok")),
     (("PATCH", "/api/fields/{fid}/choices", {"anchor_initial": False}), (401, 403, "ok", "ok", "ok")),
     (("PUT", "/api/fields/{fid}/surveys/1/exclusion", {"excluded": False}), (401, 403, 404, 404, 404)),
@@ -123,6 +133,30 @@ MATRIX = [
     (("GET", "/api/settings", None), (401, 403, 403, 403, "ok")),
     (("PUT", "/api/settings", {"display_units": "si"}), (401, 403, 403, 403, "ok")),
     (("GET", "/api/tokens", None), (401, "ok", "ok", "ok", "ok")),
+    # the reserves review (web/api/reserves.py): engineers prepare, approvers approve, admins set
+    (("GET", "/api/reserves/reviews", None), (401, "ok", "ok", "ok", "ok")),
+    (("GET", "/reserves", None), ("login", "ok", "ok", "ok", "ok")),
+    (("GET", "/reserves/999", None), ("login", 404, 404, 404, 404)),
+    (("GET", "/reserves/999/movements", None), ("login", 404, 404, 404, 404)),
+    (("GET", "/api/reserves/reviews/999/movements", None), (401, 404, 404, 404, 404)),
+    (("GET", "/reserves/999/report.pdf", None), ("login", 404, 404, 404, 404)),
+    (("GET", "/reserves/999/report.xlsx", None), ("login", 404, 404, 404, 404)),
+    (("POST", "/reserves/999/submit", None), ("login", 403, 404, 404, 404)),
+    (("POST", "/reserves/999/approve", None), ("login", 403, 403, 404, 404)),
+    (("POST", "/api/reserves/reviews", {"name": ""}), (401, 403, 422, 422, 422)),
+    (("GET", "/api/reserves/reviews/999", None), (401, 404, 404, 404, 404)),
+    (("GET", "/api/reserves/reviews/999/report.pdf", None), (401, 404, 404, 404, 404)),
+    (("GET", "/api/reserves/reviews/999/report.xlsx", None), (401, 404, 404, 404, 404)),
+    (("GET", "/api/reserves/reviews/999/fields/{fid}", None), (401, 404, 404, 404, 404)),
+    (("POST", "/api/reserves/reviews/999/fields/{fid}/refresh", None), (401, 403, 404, 404, 404)),
+    (("PATCH", "/api/reserves/reviews/999/fields/{fid}/booking", {}), (401, 403, 404, 404, 404)),
+    (("PUT", "/api/reserves/reviews/999/fields/{fid}/reconciliation/2P", {}), (401, 403, 404, 404, 404)),
+    (("POST", "/api/reserves/reviews/999/submit", None), (401, 403, 404, 404, 404)),
+    (("POST", "/api/reserves/reviews/999/return", {"reason": "r"}), (401, 403, 404, 404, 404)),
+    (("POST", "/api/reserves/reviews/999/approve", {}), (401, 403, 403, 404, 404)),
+    (("POST", "/api/reserves/reviews/999/reopen", {"reason": "r"}), (401, 403, 403, 404, 404)),
+    (("GET", "/api/reserves/settings", None), (401, "ok", "ok", "ok", "ok")),
+    (("PUT", "/api/reserves/settings", {}), (401, 403, 403, 403, "ok")),
     (("GET", "/openapi.json", None), ("login", "ok", "ok", "ok", "ok")),
     (("GET", "/api/health", None), ("ok", "ok", "ok", "ok", "ok")),
     (("GET", "/login", None), ("ok", "redirect", "redirect", "redirect", "redirect")),

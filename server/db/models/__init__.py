@@ -1,6 +1,7 @@
 """All ORM models; importing this module registers every table on Base.metadata."""
 
 from .accounts import ApiToken, AuditEvent, AuthSession, LoginAttempt, User, UserAsset
+from .forecast import FieldPlan, PlannedWell, WellTest
 from .portfolio import (
     Asset,
     Field,
@@ -13,7 +14,8 @@ from .portfolio import (
     VolumetricEstimate,
     Well,
 )
-from .results import Estimate, Job, Upload
+from .reserves import Booking, ReconciliationLine, ReservesReview, ReviewField
+from .results import Estimate, Job, RecomputeFailure, Upload
 from .settings import TeamSetting
 from .staging import StagedUpload
 
@@ -22,15 +24,22 @@ __all__ = [
     "Asset",
     "AuditEvent",
     "AuthSession",
+    "Booking",
     "Estimate",
     "Field",
     "FieldAnalysisSettings",
     "FieldNote",
+    "FieldPlan",
     "Fluid",
     "FluidLabPoint",
     "Job",
     "LoginAttempt",
+    "PlannedWell",
     "PressureSurvey",
+    "RecomputeFailure",
+    "ReconciliationLine",
+    "ReservesReview",
+    "ReviewField",
     "ProductionMonth",
     "StagedUpload",
     "TeamSetting",
@@ -39,4 +48,5 @@ __all__ = [
     "UserAsset",
     "VolumetricEstimate",
     "Well",
+    "WellTest",
 ]

@@ -65,11 +65,21 @@ class Field(Base):
 
 
 class Fluid(Base):
-    """Gas description; an optional lab table takes precedence over correlations."""
+    """Gas description; an optional lab table takes precedence over correlations.
+
+    The separator gas gravity, the well-stream gravity, or both (engine/pvt/wellstream.py).
+    """
 
     __tablename__ = "fluid"
     __table_args__ = (
-        CheckConstraint("gas_gravity > 0.55 AND gas_gravity < 1.8", name="gravity_range"),
+        CheckConstraint(
+            "gas_gravity IS NULL OR (gas_gravity > 0.55 AND gas_gravity < 1.8)", name="gravity_range"
+        ),
+        CheckConstraint(
+            "wellstream_gravity IS NULL OR (wellstream_gravity > 0.55 AND wellstream_gravity < 1.8)",
+            name="wellstream_gravity_range",
+        ),
+        CheckConstraint("gas_gravity IS NOT NULL OR wellstream_gravity IS NOT NULL", name="a_gravity"),
         CheckConstraint(
             "y_co2_frac >= 0 AND y_h2s_frac >= 0 AND y_n2_frac >= 0 "
             "AND y_co2_frac + y_h2s_frac + y_n2_frac < 1",
@@ -82,11 +92,13 @@ class Fluid(Base):
     )
     id: Mapped[int] = mapped_column(primary_key=True)
     field_id: Mapped[int] = mapped_column(ForeignKey("field.id", ondelete="CASCADE"), unique=True)
-    gas_gravity: Mapped[float] = mapped_column(Float)
+    gas_gravity: Mapped[float | None] = mapped_column(Float)  # separator (sales) gas, air = 1
     y_co2_frac: Mapped[float] = mapped_column(Float, default=0.0)
     y_h2s_frac: Mapped[float] = mapped_column(Float, default=0.0)
     y_n2_frac: Mapped[float] = mapped_column(Float, default=0.0)
     condensate_api: Mapped[float | None] = mapped_column(Float)
+    # The reservoir (well-stream) gas gravity, air = 1, when the team has it; z then uses it.
+    wellstream_gravity: Mapped[float | None] = mapped_column(Float)
     field: Mapped[Field] = relationship(back_populates="fluid")
     lab_points: Mapped[list[FluidLabPoint]] = relationship(
         back_populates="fluid", order_by="FluidLabPoint.pressure_psia", cascade="all, delete-orphan"
@@ -129,7 +141,10 @@ class FieldAnalysisSettings(Base):
     condensate_correction: Mapped[bool] = mapped_column(Boolean, default=True)
     overpressure_mode: Mapped[str] = mapped_column(String(20), default="off")
     effective_compressibility_per_psi: Mapped[float | None] = mapped_column(Float)
-    aquifer_model: Mapped[str] = mapped_column(String(40), default="none")
+    # The headline's basis: "automatic" or a model key (engine/headline/types.BASIS_MODELS),
+    # with the engineer's reason (required for a model). Replaced aquifer_model (migration 0009w).
+    basis_model: Mapped[str] = mapped_column(String(40), default="automatic", server_default="automatic")
+    basis_reason: Mapped[str] = mapped_column(Text, default="", server_default="")
     anchor_initial: Mapped[bool] = mapped_column(Boolean, default=False)
     options: Mapped[dict] = mapped_column(JSON, default=dict)
     updated_at: Mapped[dt.datetime] = mapped_column(default=utcnow, onupdate=utcnow)

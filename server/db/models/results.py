@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import datetime as dt
 
-from sqlalchemy import JSON, CheckConstraint, Float, ForeignKey, Integer, String, Text
+from sqlalchemy import JSON, CheckConstraint, Date, Float, ForeignKey, Integer, String, Text
 from sqlalchemy.orm import Mapped, mapped_column
 
 from ..base import Base, utcnow
@@ -27,11 +27,31 @@ class Estimate(Base):
     recovery_factor_frac: Mapped[float | None] = mapped_column(Float)
     cumulative_gas_bscf: Mapped[float] = mapped_column(Float, default=0.0)
     remaining_bscf: Mapped[float | None] = mapped_column(Float)
+    # The forecast's summary (detail["forecast"] holds the profiles): EUR at the commercial
+    # limit per case, the best case's last producing date and why it stops.
+    forecast_eur_low_bscf: Mapped[float | None] = mapped_column(Float)
+    forecast_eur_best_bscf: Mapped[float | None] = mapped_column(Float)
+    forecast_eur_high_bscf: Mapped[float | None] = mapped_column(Float)
+    forecast_end_date: Mapped[dt.date | None] = mapped_column(Date)
+    forecast_stop_reason: Mapped[str | None] = mapped_column(String(40))
+    # Gas per calendar year per case, {"years": [...], "low": [...], "best": [...], "high": [...]}
+    # in Bscf: what the portfolio's stacked profile and export read (services/forecast.py).
+    forecast_yearly: Mapped[dict | None] = mapped_column(JSON)
     flags: Mapped[list] = mapped_column(JSON, default=list)
-    detail: Mapped[dict] = mapped_column(JSON, default=dict)
+    # The headline's basis (the giip_*/eur/recovery/remaining columns above come from it) and
+    # the straight p/z line beside it, as plain columns so the portfolio need not read detail.
+    basis_model: Mapped[str | None] = mapped_column(String(40))
+    basis_title: Mapped[str | None] = mapped_column(String(200))
+    basis_source: Mapped[str | None] = mapped_column(String(20))  # "automatic" or "engineer"
+    line_giip_low_bscf: Mapped[float | None] = mapped_column(Float)
+    line_giip_best_bscf: Mapped[float | None] = mapped_column(Float)
+    line_giip_high_bscf: Mapped[float | None] = mapped_column(Float)
     inputs_fingerprint: Mapped[str] = mapped_column(String(64), index=True)
     engine_version: Mapped[str] = mapped_column(String(20))
     computed_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+    # Last: on SQLite a column after this large JSON costs a walk of its overflow pages
+    # (migration 0009s; the portfolio reads every other column of 2,000 rows).
+    detail: Mapped[dict] = mapped_column(JSON, default=dict)
 
 
 class Upload(Base):
@@ -73,3 +93,17 @@ class Job(Base):
     error: Mapped[str | None] = mapped_column(Text)
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     finished_at: Mapped[dt.datetime | None] = mapped_column()
+
+
+class RecomputeFailure(Base):
+    """A field whose latest recompute failed unexpectedly: its stored estimate is stale.
+
+    One row per field, replaced by each failure and deleted by the next recompute that
+    finishes (issue 18: one field's failure must not stop the portfolio, and its page
+    must say why the estimate shown is old)."""
+
+    __tablename__ = "recompute_failure"
+    field_id: Mapped[int] = mapped_column(ForeignKey("field.id", ondelete="CASCADE"), primary_key=True)
+    job_id: Mapped[int | None] = mapped_column(ForeignKey("job.id", ondelete="SET NULL"))
+    error: Mapped[str] = mapped_column(Text)
+    failed_at: Mapped[dt.datetime] = mapped_column(default=utcnow)

@@ -23,6 +23,11 @@ class StagedUpload(Base):
     options: Mapped[dict] = mapped_column(JSON, default=dict)
     replace: Mapped[bool] = mapped_column(Boolean, default=False)
     digest: Mapped[str] = mapped_column(String(64), default="")
-    created_by_id: Mapped[int | None] = mapped_column(ForeignKey("user_account.id", ondelete="CASCADE"))
+    created_by_id: Mapped[int | None] = mapped_column(
+        ForeignKey("user_account.id", ondelete="CASCADE"), index=True
+    )
+    # "file": the bytes of a file that can be committed; "report": the problem list (CSV) of a
+    # file that cannot (its bytes are never kept)
+    content: Mapped[str] = mapped_column(String(10), default="file", server_default="file")
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     expires_at: Mapped[dt.datetime] = mapped_column(index=True)

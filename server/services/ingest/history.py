@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import datetime as dt
 from dataclasses import dataclass
 
 from sqlalchemy import select, tuple_
@@ -13,11 +12,8 @@ from ...db.models import Field, PressureSurvey, ProductionMonth, Well
 from ..audit import Actor
 from .parse import Parsed
 from .plan import Change, Names, UploadPlan, place
+from .rowchecks import INITIAL_PRESSURE_MARGIN, check_cumulatives
 from .write import bulk_insert, replace_row
-
-INITIAL_PRESSURE_MARGIN = 1.02  # a survey 2 % above p_i is flagged (gauge noise is smaller)
-CUMULATIVE_TOLERANCE_FRAC = 0.01
-_UNIT = {"cum_gas": "Mscf", "cum_condensate": "stb", "cum_water": "stb"}
 
 
 @dataclass(frozen=True)
@@ -193,54 +189,6 @@ def write_production(session: Session, plan: UploadPlan, upload_id: int, actor: 
     )
     for c in plan.replacements:
         replace_row(session, c, upload_id=upload_id, actor=actor, field_id=c.current.well.field_id)
-
-
-def _next_month(d: dt.date) -> dt.date:
-    return dt.date(d.year + d.month // 12, d.month % 12 + 1, 1)
-
-
-def check_cumulatives(wells, columns: set[str], report) -> None:
-    """Cumulative columns never decrease within a well; their steps should match the months.
-
-    ``wells`` holds one list of production records per well."""
-    pairs = [
-        (c, m)
-        for c, m in (("cum_gas", "gas"), ("cum_condensate", "condensate"), ("cum_water", "water"))
-        if c in columns
-    ]
-    if not pairs:
-        return
-    for recs in wells:
-        recs = sorted(recs, key=lambda r: r["month"])
-        for cum, monthly in pairs:
-            prev = None
-            for r in recs:
-                value = r.get(cum)
-                if value is None:
-                    continue
-                if prev is not None:
-                    step = value - prev[cum]
-                    if step < 0:
-                        report.add(
-                            r["_row"],
-                            cum,
-                            None,
-                            f"decreases from {prev[cum]:,.6g} to {value:,.6g} {_UNIT[cum]} "
-                            f"(row {prev['_row']}, {prev['month'].isoformat()[:7]}); "
-                            "a cumulative cannot fall",
-                        )
-                    elif monthly in columns and _next_month(prev["month"]) == r["month"]:
-                        tol = max(0.5, CUMULATIVE_TOLERANCE_FRAC * max(step, r[monthly]))
-                        if abs(step - r[monthly]) > tol:
-                            report.add(
-                                r["_row"],
-                                cum,
-                                None,
-                                f"rises by {step:,.6g} {_UNIT[cum]} since row {prev['_row']} but the "
-                                f"month's {monthly} is {r[monthly]:,.6g} {_UNIT[cum]}",
-                                "warning",
-                            )
-                prev = r
 
 
 def _chunks(items: list, n: int):

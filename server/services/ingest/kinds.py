@@ -66,6 +66,7 @@ class Column:
     template_unit: str | None = None
     examples: tuple[Any, Any] = ("", "")
     max_len: int = 120
+    future: bool = False  # a date column that may lie in the future (plans); others may not
 
     @property
     def template_header(self) -> str:
@@ -115,7 +116,7 @@ def _kinds() -> dict[str, FileKind]:
                 help="asset or business unit; created if new",
                 examples=("Example Asset",) * 2,
             ),
-            Column("basin", "text", required=False, default="", examples=("Example Basin",) * 2),
+            Column("basin", "name", required=False, default="", examples=("Example Basin",) * 2),
             Column(
                 "datum_depth",
                 "number",
@@ -194,9 +195,22 @@ def _kinds() -> dict[str, FileKind]:
             Column(
                 "gas_gravity",
                 "number",
+                required=False,
+                aliases=("separator_gas_gravity", "separator_gravity"),
                 bounds=Range(0.55, 1.8, True, True),
-                help="gas specific gravity (air = 1)",
+                help="separator (sales) gas specific gravity (air = 1); with condensate and its API "
+                "gravity the well-stream gas is recombined from it",
                 examples=(0.65, 0.65),
+            ),
+            Column(
+                "wellstream_gravity",
+                "number",
+                required=False,
+                aliases=("well_stream_gravity", "wellstream_gas_gravity", "reservoir_gas_gravity"),
+                bounds=Range(0.55, 1.8, True, True),
+                help="well-stream (reservoir) gas specific gravity (air = 1), when known; z then uses it "
+                "as it is. Give this, gas_gravity, or both",
+                examples=("", ""),
             ),
             Column(
                 "co2",
@@ -475,12 +489,206 @@ def _kinds() -> dict[str, FileKind]:
         help="one row per field and estimate date; Monte Carlo input ranges optional",
         example_rows=1,
     )
-    return {k.name: k for k in (fields, wells, fluids, lab, surveys, production, volumetrics)}
+    kinds = (fields, wells, fluids, lab, surveys, production, volumetrics, *_forecast_kinds())
+    return {k.name: k for k in kinds}
+
+
+_RATE = Range(0.0, 1e9, lo_open=True, unit="Mscf/d")
+_EXPONENT = Range(0.5, 1.0)  # back-pressure n (Rawlins & Schellhardt 1936): 0.5 turbulent .. 1 laminar
+
+
+def _forecast_kinds() -> tuple[FileKind, ...]:
+    """Well tests, field plans and planned wells: what the forecast needs besides the history."""
+    tests = FileKind(
+        "well_tests",
+        "Well tests (multi-rate)",
+        (
+            FIELD,
+            WELL,
+            Column("test_date", "date", aliases=("date",), examples=("2021-03-04", "2021-03-04")),
+            Column(
+                "rate",
+                "number",
+                "gas_rate",
+                bounds=_RATE,
+                template_unit="mscf_per_day",
+                help="stabilised gas rate of the flow period (separator gas)",
+                examples=(4200, 7900),
+            ),
+            Column(
+                "flowing_pressure",
+                "number",
+                "pressure",
+                aliases=("flowing_bhp", "pwf"),
+                bounds=_P,
+                template_unit="psia",
+                help="stabilised flowing bottom-hole pressure",
+                examples=(3650, 3180),
+            ),
+            Column(
+                "static_pressure",
+                "number",
+                "pressure",
+                bounds=_P,
+                template_unit="psia",
+                help="average (shut-in) reservoir pressure of the test",
+                examples=(4100, 4100),
+            ),
+        ),
+        key=("field", "well", "test_date", "rate"),
+        help="one row per flow period; the rows of one well and date are one multi-rate test",
+    )
+    plans = FileKind(
+        "field_plans",
+        "Field plans",
+        (
+            FIELD,
+            Column(
+                "plateau_rate",
+                "number",
+                "gas_rate",
+                required=False,
+                bounds=_RATE,
+                template_unit="mscf_per_day",
+                help="contract or plant rate of the field; blank: no limit",
+                examples=(60000, ""),
+            ),
+            Column(
+                "uptime",
+                "number",
+                "fraction",
+                required=False,
+                default=0.95,
+                bounds=Range(0.0, 1.0, lo_open=True, unit="(fraction)"),
+                template_unit="frac",
+                help="share of calendar time on stream",
+                examples=(0.95, 0.95),
+            ),
+            Column(
+                "min_flowing_pressure",
+                "number",
+                "pressure",
+                required=False,
+                bounds=_P,
+                template_unit="psia",
+                help="lowest flowing bottom-hole pressure the wells produce against; blank: from the "
+                "abandonment pressure",
+                examples=(900, ""),
+            ),
+            Column(
+                "compression_date",
+                "date",
+                required=False,
+                future=True,
+                help="date compression starts (optional; give its minimum pressure too)",
+                examples=("2031-01-01", ""),
+            ),
+            Column(
+                "compression_min_flowing_pressure",
+                "number",
+                "pressure",
+                required=False,
+                bounds=_P,
+                template_unit="psia",
+                help="the lower minimum flowing pressure once compression runs",
+                examples=(450, ""),
+            ),
+            Column(
+                "economic_limit_rate",
+                "number",
+                "gas_rate",
+                required=False,
+                default=0.0,
+                bounds=Range(0.0, 1e9, unit="Mscf/d"),
+                template_unit="mscf_per_day",
+                help="field rate below which production no longer pays",
+                examples=(2500, 0),
+            ),
+            Column(
+                "licence_end",
+                "date",
+                required=False,
+                future=True,
+                help="date the production licence ends (optional)",
+                examples=("2040-12-31", ""),
+            ),
+            Column(
+                "deliverability_exponent",
+                "number",
+                required=False,
+                default=0.85,
+                bounds=_EXPONENT,
+                help="n used when C is calibrated from monthly rates (0.5 to 1; 0.85 common practice)",
+                examples=(0.85, 0.85),
+            ),
+        ),
+        key=("field",),
+        help="one row per field: how it will be produced; replaces the field's plan with 'replace existing'",
+        example_rows=1,
+    )
+    planned = FileKind(
+        "planned_wells",
+        "Planned wells",
+        (
+            FIELD,
+            Column(
+                "well",
+                "name",
+                aliases=("well_name", "planned_well"),
+                help="name of the planned well",
+                examples=("EX-3", "EX-4"),
+            ),
+            Column(
+                "start_date",
+                "date",
+                future=True,
+                help="first day on production",
+                examples=("2028-07-01", "2029-01-01"),
+            ),
+            Column(
+                "compartment",
+                "name",
+                required=False,
+                max_len=60,
+                help="compartment label (optional)",
+                examples=("north", ""),
+            ),
+            Column(
+                "c_mscf_per_day_psi2n",
+                "number",
+                aliases=("c",),
+                bounds=Range(0.0, 1e6, lo_open=True),
+                help="expected back-pressure coefficient C of q = C (p² − pwf²)^n, q in Mscf/d, p in psia",
+                examples=(0.0004, 0.0006),
+            ),
+            Column(
+                "n",
+                "number",
+                bounds=_EXPONENT,
+                help="expected back-pressure exponent (0.5 to 1)",
+                examples=(0.85, 0.8),
+            ),
+        ),
+        key=("field", "well"),
+        help="one row per planned well; names must not be those of existing wells",
+    )
+    return tests, plans, planned
 
 
 KINDS = _kinds()
 #: In the order a new portfolio is loaded.
-UPLOAD_KINDS = ("fields", "wells", "fluids", "lab_table", "surveys", "production", "volumetrics")
+UPLOAD_KINDS = (
+    "fields",
+    "wells",
+    "fluids",
+    "lab_table",
+    "surveys",
+    "production",
+    "volumetrics",
+    "well_tests",
+    "field_plans",
+    "planned_wells",
+)
 
 
 def file_kind(name: str) -> FileKind:

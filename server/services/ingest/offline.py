@@ -11,18 +11,33 @@ import dataclasses
 import datetime as dt
 from dataclasses import dataclass, field
 from pathlib import Path
+from types import SimpleNamespace
 
 from ...engine.inputs import AnalysisChoices, FieldInputs
-from ...engine.pvt import GasFluid
 from ...engine.units import standard_conditions
-from ..fieldinputs import ProductionRecord, SurveyRecord, build_field_inputs, lab_table_from_points
-from .history import INITIAL_PRESSURE_MARGIN, check_cumulatives
+from ..fieldwork.planrules import DEFAULT_PLAN, PLAN_COLUMNS, engine_field_plan, plan_problems
+from ..jobs.field_inputs import (
+    ProductionRecord,
+    SurveyRecord,
+    VolumetricRecord,
+    WellTestRecord,
+    build_field_inputs,
+    field_volumetric,
+    fluid_inputs,
+    lab_table_from_points,
+)
+from .files.tabular import TableError, read_table
 from .kinds import file_kind
 from .parse import ReadOptions, parse_table
-from .plan import check_repeated_keys
-from .portfolio import lab_points
 from .report import ValidationReport
-from .tabular import TableError, read_table
+from .rowchecks import (
+    INITIAL_PRESSURE_MARGIN,
+    check_cumulatives,
+    check_fluid_row,
+    check_repeated_keys,
+    check_volumetric_row,
+    lab_points,
+)
 
 
 class OfflineInputError(Exception):
@@ -78,12 +93,20 @@ def load_offline_field(
     production: Path,
     wells: Path | None = None,
     lab_table: Path | None = None,
+    volumetrics: Path | None = None,
     field_name: str | None = None,
     options: ReadOptions | None = None,
     choices: dict | None = None,
     today: dt.date | None = None,
+    well_tests: Path | None = None,
+    plan: Path | None = None,
+    planned_wells: Path | None = None,
 ) -> OfflineField:
-    """Read the files of one field and build its :class:`FieldInputs`."""
+    """Read the files of one field and build its :class:`FieldInputs`.
+
+    ``volumetrics`` (the upload kind's format) gives the static estimate the flags compare
+    with, chosen as the app chooses it (the newest by estimate date).
+    """
     options = options or ReadOptions()
     today = today or dt.date.today()
     reports: dict[str, dict] = {}
@@ -95,8 +118,12 @@ def load_offline_field(
             f"{fields}: the abandonment pressure must be below the initial pressure", reports
         )
     fl = _only(_read("fluids", fluids, options, today, reports), name, "fluids", fluids)
-    if fl["co2"] + fl["h2s"] + fl["n2"] >= 1.0:
-        raise OfflineInputError(f"{fluids}: CO2, H2S and N2 fractions add up to 1 or more", reports)
+    fluid_report = ValidationReport("fluids")
+    if not check_fluid_row(fl, fluid_report):
+        reports[f"{fluids} (rows)"] = fluid_report.as_dict()
+        raise OfflineInputError(f"{fluids}: {fluid_report.errors[0].message}", reports)
+    if fluid_report.warning_count:
+        reports[f"{fluids} (warnings)"] = fluid_report.as_dict()
     well_info: dict[str, dict] | None = None
     if wells is not None:
         well_info = {
@@ -118,6 +145,9 @@ def load_offline_field(
             lab = lab_table_from_points(
                 [(p["pressure_psia"], p["z_factor"], p["bg_rcf_per_scf"]) for p in points]
             )
+    volumetric = None
+    if volumetrics is not None:
+        volumetric = _volumetric(volumetrics, key, name, options, today, reports)
     survey_rows = [
         r for r in _read("surveys", surveys, options, today, reports) if r["field"].casefold() == key
     ]
@@ -177,11 +207,13 @@ def load_offline_field(
             condensate_stb=r["condensate"],
             water_stb=r["water"],
             compartment=info(r["well"]).get("compartment"),
+            well=r["well"],
         )
         for r in prod_rows
     ]
+    forecast_inputs = _forecast_inputs(name, f, well_tests, plan, planned_wells, options, today, reports)
     inputs = build_field_inputs(
-        fluid=GasFluid(fl["gas_gravity"], fl["co2"], fl["h2s"], fl["n2"]),
+        **fluid_inputs(fl.get("gas_gravity"), fl.get("wellstream_gravity"), fl["co2"], fl["h2s"], fl["n2"]),
         reservoir_temperature_degF=f["reservoir_temperature"],
         initial_pressure_psia=f["initial_pressure"],
         abandonment_pressure_psia=f["abandonment_pressure"],
@@ -191,9 +223,86 @@ def load_offline_field(
         condensate_api=fl.get("condensate_api"),
         lab_table=lab,
         choices=analysis_choices(choices or {}),
+        **forecast_inputs,
     )
-    inputs = dataclasses.replace(inputs, standard_conditions=standard_conditions(options.standard_conditions))
+    inputs = dataclasses.replace(
+        inputs, standard_conditions=standard_conditions(options.standard_conditions), volumetric=volumetric
+    )
     return OfflineField(name, inputs, reports)
+
+
+def _forecast_inputs(name, f, well_tests, plan, planned_wells, options, today, reports) -> dict:
+    """The well tests and the field plan (with its planned wells) from their files."""
+    key = name.casefold()
+    out: dict = {}
+    if well_tests is not None:
+        rows = [
+            r
+            for r in _read("well_tests", well_tests, options, today, reports)
+            if r["field"].casefold() == key
+        ]
+        problems = ValidationReport("well_tests")
+        for r in rows:
+            if r["flowing_pressure"] >= r["static_pressure"]:
+                problems.add(
+                    r["_row"], "flowing_pressure", r["flowing_pressure"], "must be below the static pressure"
+                )
+        if problems.error_count:
+            reports[f"{well_tests} (checks)"] = problems.as_dict()
+            raise OfflineInputError(
+                f"{well_tests}: a flowing pressure is not below its static pressure", reports
+            )
+        out["well_tests"] = [
+            WellTestRecord(r["test_date"], r["well"], r["rate"], r["flowing_pressure"], r["static_pressure"])
+            for r in rows
+        ]
+    if plan is None:
+        if planned_wells is not None:
+            raise OfflineInputError(
+                f"{planned_wells}: planned wells count only with a field plan (--plan)", reports
+            )
+        return out
+    row = _only(_read("field_plans", plan, options, today, reports), name, "field plan", plan)
+    values = DEFAULT_PLAN | {stored: row.get(col) for stored, col in PLAN_COLUMNS if col in row["_columns"]}
+    problems = plan_problems(SimpleNamespace(initial_pressure_psia=f["initial_pressure"]), values)
+    if problems:
+        report = ValidationReport("field_plans")
+        columns = dict(PLAN_COLUMNS)
+        for k, message in problems.items():
+            report.add(row["_row"], columns[k], row.get(columns[k]), message)
+        reports[f"{plan} (checks)"] = report.as_dict()
+        raise OfflineInputError(f"{plan}: the plan of {name!r} is not acceptable", reports)
+    wells = []
+    if planned_wells is not None:
+        wells = [
+            SimpleNamespace(
+                name=r["well"],
+                start_date=r["start_date"],
+                compartment=r.get("compartment"),
+                c_mscf_per_day_psi2n=r["c_mscf_per_day_psi2n"],
+                n=r["n"],
+            )
+            for r in _read("planned_wells", planned_wells, options, today, reports)
+            if r["field"].casefold() == key
+        ]
+    out["plan"] = engine_field_plan(SimpleNamespace(**values), wells)
+    return out
+
+
+def _volumetric(path: Path, key: str, name: str, options, today, reports):
+    """The field's static estimate from a volumetrics file, checked as an upload checks it."""
+    rows = [r for r in _read("volumetrics", path, options, today, reports) if r["field"].casefold() == key]
+    report = ValidationReport("volumetrics")
+    kept = [r for r in rows if check_volumetric_row(r, report) is not None]
+    if not rows:
+        report.note(f"no volumetric estimate for field {name!r}: the flags do not compare with one")
+    if report.error_count or report.warning_count or report.notes:
+        reports[f"{path} (rows)"] = report.as_dict()
+    if report.error_count:
+        raise OfflineInputError(f"{path}: {report.errors[0].message} (row {report.errors[0].row})", reports)
+    return field_volumetric(
+        [VolumetricRecord(r["estimate_date"], r["giip_low"], r["giip_best"], r["giip_high"]) for r in kept]
+    )
 
 
 def analysis_choices(values: dict) -> AnalysisChoices:

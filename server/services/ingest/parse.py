@@ -8,6 +8,7 @@ checked against physical bounds. Nothing here touches the database.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import re
 import unicodedata
@@ -16,10 +17,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ...engine.units import standard_conditions
-from . import cells
+from .files import cells
+from .files.tabular import Table
 from .kinds import Column, FileKind
 from .report import ColumnReading, ValidationReport
-from .tabular import Table
 from .units import FORM_UNIT_CHOICES, Quantity, quantities
 
 DECIMALS = {".": "decimal point", ",": "decimal comma"}
@@ -234,6 +235,8 @@ def parse_table(
     """Check the header, parse every cell and return the rows that have no error."""
     for n in table.notes:
         report.note(n)
+    for w in table.warnings:
+        report.add(w.row, w.column, w.value, w.message, w.severity)
     q = quantities(opts.atmosphere_psia, standard_conditions(opts.standard_conditions))
     mapped = map_headers(kind, table.header, opts, q, report)
     report.rows_total = len(table.rows)
@@ -247,29 +250,39 @@ def parse_table(
     blank: list[int] = []
     live: list[int] = []
     text_rows = table.source == "csv"  # every cell a string: one join tells a blank row
+    rownum = table.row_number
     for i, row in enumerate(table.rows):
         empty = not "".join(row).strip() if text_rows else all(cells.is_blank(c) for c in row)
         if empty:
-            blank.append(i + 2)
+            blank.append(rownum(i))
         elif len(row) != width:
-            report.add(i + 2, None, None, f"has {len(row)} cells but the header has {width}")
+            report.add(rownum(i), None, None, f"has {len(row)} cells but the header has {width}")
             bad.add(i)
+            if report.full:
+                report.stop(f"row {rownum(i)}")
+                return Parsed([], set())
         else:
             live.append(i)
     if blank:
         shown = ", ".join(map(str, blank[:10])) + (" …" if len(blank) > 10 else "")
         report.note(f"{len(blank)} blank row(s) skipped (rows {shown})")
+    if table.blank_rows:
+        report.note(f"{table.blank_rows} blank row(s) skipped")
     rules = cells.DateRules(opts.date_order, today, table.excel_epoch)
+    live_rows = [rownum(i) for i in live]
     columns: dict[str, list] = {}
     for m in mapped:
         raw = [table.rows[i][m.index] for i in live]
-        columns[m.column.name] = _parse_column(m, raw, live, decimal, rules, q, report, bad)
+        columns[m.column.name] = _parse_column(m, raw, live, live_rows, decimal, rules, q, report, bad)
+        if report.full:
+            report.stop(f"column {m.column.name!r}")
+            return Parsed([], set())
     names = [*columns, *(c.name for c in kind.columns if c.name not in columns), "_row"]
     defaults = [c.default for c in kind.columns if c.name not in columns]
-    rows = zip(*columns.values(), *([d] * len(live) for d in defaults), [i + 2 for i in live], strict=True)
+    rows = zip(*columns.values(), *([d] * len(live) for d in defaults), live_rows, strict=True)
     records = [dict(zip(names, r, strict=True)) for r in rows]
     if bad:
-        records = [r for r in records if r["_row"] - 2 not in bad]
+        records = [r for r, i in zip(records, live, strict=True) if i not in bad]
     return Parsed(records, set(columns))
 
 
@@ -283,7 +296,12 @@ class _Bad:
 _BLANK = object()
 
 
-def _parse_column(m: Mapped, raw: list, live: list[int], decimal: str, rules, q, report, bad) -> list:
+LATEST_PLAN_DATE = dt.date(2200, 12, 31)  # the last date a plan's columns take
+
+
+def _parse_column(
+    m: Mapped, raw: list, live: list[int], live_rows: list[int], decimal: str, rules, q, report, bad
+) -> list:
     """Parse one column; each distinct cell is parsed once (files repeat names and months)."""
     col = m.column
     header = col.name
@@ -307,24 +325,28 @@ def _parse_column(m: Mapped, raw: list, live: list[int], decimal: str, rules, q,
         if any(v is _BLANK or isinstance(v, _Bad) for v in results.values()):
             present = [True] * len(out)
             for k, v in enumerate(out):
+                if report.full:
+                    break
                 if v is _BLANK:
                     present[k] = False
                     out[k] = col.default
                     if col.required:
-                        report.add(live[k] + 2, header, None, "is empty")
+                        report.add(live_rows[k], header, None, "is empty")
                         bad.add(live[k])
                 elif isinstance(v, _Bad):
                     present[k] = False
                     out[k] = None
-                    report.add(live[k] + 2, header, raw[k], v.message)
+                    report.add(live_rows[k], header, raw[k], v.message)
                     bad.add(live[k])
+            if report.full:
+                return out  # the caller stops here; nothing is converted
         if col.type == "text" and any(
             isinstance(v, str) and v.startswith(cells.FORMULA_START) for v in results.values()
         ):
             for k, v in enumerate(out):
                 if isinstance(v, str) and v.startswith(cells.FORMULA_START):
                     report.add(
-                        live[k] + 2,
+                        live_rows[k],
                         header,
                         raw[k],
                         "begins like a spreadsheet formula; it is stored "
@@ -341,11 +363,11 @@ def _parse_column(m: Mapped, raw: list, live: list[int], decimal: str, rules, q,
                 f"(day 0 = {rules.epoch.isoformat()})"
             )
     if col.type == "number":
-        _convert_and_check(col, unit, out, present, raw, live, q, report, bad)
+        _convert_and_check(col, unit, out, present, raw, live, live_rows, q, report, bad)
     return out
 
 
-def _convert_and_check(col: Column, unit, out: list, present, raw, live, q, report, bad) -> None:
+def _convert_and_check(col: Column, unit, out: list, present, raw, live, live_rows, q, report, bad) -> None:
     """Convert to the stored unit in place and check the physical bounds."""
     idx = range(len(out)) if present is None else [k for k, p in enumerate(present) if p]
     if unit is not None:
@@ -361,12 +383,14 @@ def _convert_and_check(col: Column, unit, out: list, present, raw, live, q, repo
         above = values > rng.lo if rng.lo_open else values >= rng.lo
         below = values < rng.hi if rng.hi_open else values <= rng.hi
         for j in np.flatnonzero(~(above & below)):
+            if report.full:
+                return
             k = idx[j]
             if severity == "error":
-                report.add(live[k] + 2, col.name, raw[k], rng.problem(out[k]) + _in_stored(unit, col, q))
+                report.add(live_rows[k], col.name, raw[k], rng.problem(out[k]) + _in_stored(unit, col, q))
                 bad.add(live[k])
             elif live[k] not in bad:
-                report.add(live[k] + 2, col.name, raw[k], f"is unusual: it {rng.describe()}", "warning")
+                report.add(live_rows[k], col.name, raw[k], f"is unusual: it {rng.describe()}", "warning")
 
 
 def _in_stored(unit, col: Column, q) -> str:
@@ -382,6 +406,8 @@ def _cell_parser(col: Column, decimal: str, rules):
     if col.type == "text":
         return lambda c: cells.text(c, max_len=col.max_len)
     if col.type == "date":
+        if col.future:  # a plan's dates (compression, licence end, a planned well's start)
+            rules = dataclasses.replace(rules, today=LATEST_PLAN_DATE)
         return lambda c: cells.date(c, rules)
     if col.type == "month":
         return lambda c: cells.month(c, rules)

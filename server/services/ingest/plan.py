@@ -12,9 +12,9 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from ...db.models import Field, Well
-from .kinds import FileKind
 from .parse import ReadOptions
 from .report import ValidationReport
+from .rowchecks import check_repeated_keys  # noqa: F401 - its home before issue 17
 
 PREVIEW_CHANGES = 50
 
@@ -150,34 +150,6 @@ def place(
         return
     change.current, change.before = current, before
     plan.replacements.append(change)
-
-
-def check_repeated_keys(kind: FileKind, records: list[dict], report: ValidationReport) -> list[dict]:
-    """Drop and report rows whose key repeats an earlier row's (names compared without case)."""
-    columns = []
-    for k in kind.key:
-        values = [r[k] for r in records]
-        if values and isinstance(values[0], str):
-            folded = {v: v.casefold() for v in set(values)}
-            values = [folded[v] for v in values]
-        columns.append(values)
-    seen: dict[tuple, int] = {}
-    out = []
-    for r, key in zip(records, zip(*columns, strict=True), strict=True):
-        first = seen.setdefault(key, r["_row"])
-        if first == r["_row"]:
-            out.append(r)
-        elif kind.name == "production":
-            month = plain(r["month"])[:7]
-            report.add(
-                r["_row"],
-                "month",
-                month,
-                f"overlaps row {first}: both give production of this well for {month}",
-            )
-        else:
-            report.add(r["_row"], None, None, f"duplicates row {first} ({', '.join(kind.key)})")
-    return out
 
 
 class Names:

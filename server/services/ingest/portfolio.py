@@ -16,9 +16,10 @@ from ...db.models import (
 )
 from .. import audit
 from ..audit import Actor
-from .kinds import CASES, MC_PARAMETERS
+from .files.names import Lookalikes, differing
 from .parse import Parsed
 from .plan import Change, Names, UploadPlan, place, plain
+from .rowchecks import check_fluid_row, check_volumetric_row, lab_points
 from .write import replace_row
 
 FIELD_COLUMNS = (
@@ -28,18 +29,39 @@ FIELD_COLUMNS = (
     ("abandonment_pressure_psia", "abandonment_pressure"),
     ("description", "description"),
 )
-VOLUMETRIC_CHECK_FRAC = 0.25  # best GIIP vs the product of the best inputs (common practice: a sanity check)
-MC_STORED = {
-    "rock_volume": "rock_volume_ft3",
-    "net_to_gross": "net_to_gross_frac",
-    "porosity": "porosity_frac",
-    "gas_saturation": "gas_saturation_frac",
-    "bgi": "bgi_rcf_per_scf",
-}
 
 
 def _present(parsed: Parsed, pairs) -> tuple[str, ...]:
     return tuple(stored for stored, col in pairs if col in parsed.columns)
+
+
+def lookalike(report, row: int, column: str, value: str, seen: Lookalikes, what: str) -> bool:
+    """Report ``value`` when it looks like another name in ``seen`` (UTS #39 skeleton): an error
+    when either name has a character outside ASCII (a homoglyph from another script), else a
+    warning (``1``/``l``, ``0``/``O`` are confusable but both plausible names). True: refused."""
+    twin = seen.twin(value)
+    seen.add(value)
+    if twin is None:
+        return False
+    if value.isascii() and twin.isascii():
+        report.add(
+            row, column, value, f"looks like the {what} {twin!r}; check that it is a different one", "warning"
+        )
+        return False
+    report.add(
+        row,
+        column,
+        value,
+        f"looks the same as the {what} {twin!r} but is written with other characters "
+        f"({differing(value, twin)}); use the existing name or one that reads differently",
+    )
+    return True
+
+
+TAKEN_NAME = (
+    "this name cannot be given to a new field: field names are unique in the whole database "
+    "(one may exist where you have no access); choose another name"
+)
 
 
 def plan_fields(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool) -> None:
@@ -47,7 +69,21 @@ def plan_fields(session: Session, parsed: Parsed, plan: UploadPlan, replace: boo
     names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
     assets = {a.name.casefold(): a for a in session.execute(select(Asset)).scalars()}
     new_assets: dict[str, str] = {}
+    visible = select(Field.name)
+    if plan.asset_ids is not None:  # only names the user can see: no oracle for other assets' fields
+        visible = visible.where(Field.asset_id.in_(plan.asset_ids))
+    field_names = Lookalikes(session.execute(visible).scalars())
+    asset_names = Lookalikes(
+        a.name for a in assets.values() if plan.asset_ids is None or a.id in plan.asset_ids
+    )
+    basins = Lookalikes(a.basin for a in assets.values() if a.basin)
     for r in parsed.records:
+        refused = lookalike(report, r["_row"], "field", r["field"], field_names, "field")
+        refused |= lookalike(report, r["_row"], "asset", r["asset"], asset_names, "asset")
+        if r["basin"]:
+            refused |= lookalike(report, r["_row"], "basin", r["basin"], basins, "basin")
+        if refused:
+            continue
         if r["abandonment_pressure"] >= r["initial_pressure"]:
             report.add(
                 r["_row"],
@@ -58,8 +94,9 @@ def plan_fields(session: Session, parsed: Parsed, plan: UploadPlan, replace: boo
             continue
         f = names.field(r["field"], r["_row"], required=False)
         if f is None and r["field"].casefold() in names.hidden:
-            report.add(r["_row"], "field", r["field"], "a field of this name exists outside your assets")
-            continue
+            # A field the user may not see reads as unknown (no oracle): planned like a new
+            # field; storing it is refused (see TAKEN_NAME), as any name already taken is.
+            plan.extra.setdefault("taken_names", {})[r["_row"]] = r["field"]
         asset = assets.get(r["asset"].casefold())
         if plan.asset_ids is not None and (asset is None or asset.id not in plan.asset_ids):
             report.add(
@@ -117,9 +154,22 @@ def plan_wells(session: Session, parsed: Parsed, plan: UploadPlan, replace: bool
     compare = _present(
         parsed, (("compartment", "compartment"), ("gauge_reference_depth_ft", "gauge_reference_depth"))
     )
+    wells: dict[int, Lookalikes] = {}
+    compartments: dict[int, Lookalikes] = {}
+    for (field_id, _), stored in names.wells.items():
+        for w in stored:
+            wells.setdefault(field_id, Lookalikes()).add(w.name)
+            if w.compartment:
+                compartments.setdefault(field_id, Lookalikes()).add(w.compartment)
     for r in parsed.records:
         f = names.field(r["field"], r["_row"])
         if f is None:
+            continue
+        if lookalike(plan.report, r["_row"], "well", r["well"], wells.setdefault(f.id, Lookalikes()), "well"):
+            continue
+        label = r.get("compartment")
+        seen = compartments.setdefault(f.id, Lookalikes())
+        if label and lookalike(plan.report, r["_row"], "compartment", label, seen, "compartment"):
             continue
         found = names.wells.get((f.id, r["well"].casefold()), [])
         current = next((w for w in found if w.name == r["well"]), found[0] if len(found) == 1 else None)
@@ -160,6 +210,7 @@ write_wells = _write_rows(Well)
 
 FLUID_COLUMNS = (
     ("gas_gravity", "gas_gravity"),
+    ("wellstream_gravity", "wellstream_gravity"),
     ("y_co2_frac", "co2"),
     ("y_h2s_frac", "h2s"),
     ("y_n2_frac", "n2"),
@@ -171,8 +222,7 @@ def plan_fluids(session: Session, parsed: Parsed, plan: UploadPlan, replace: boo
     report = plan.report
     names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
     for r in parsed.records:
-        if r["co2"] + r["h2s"] + r["n2"] >= 1.0:
-            report.add(r["_row"], None, None, "CO2, H2S and N2 fractions add up to 1 or more")
+        if not check_fluid_row(r, report):
             continue
         f = names.field(r["field"], r["_row"])
         if f is None:
@@ -248,36 +298,6 @@ def plan_lab_table(session: Session, parsed: Parsed, plan: UploadPlan, replace: 
             plan.replacements.append(change)
 
 
-def lab_points(field_name: str, rows: list[dict], report) -> list[dict] | None:
-    """One field's lab table from its rows, sorted by pressure; None if it is unusable."""
-    rows = sorted(rows, key=lambda r: r["pressure"])
-    first = min(r["_row"] for r in rows)
-    ok = True
-    for r in rows:
-        if r.get("z_factor") is None and r.get("bg") is None:
-            report.add(r["_row"], None, None, "give z_factor or bg (or both)")
-            ok = False
-    if len(rows) < 2:
-        report.add(
-            first, None, None, f"the lab table of {field_name!r} has one pressure; at least two are needed"
-        )
-        return None
-    for col in ("z_factor", "bg"):
-        given = [r.get(col) is not None for r in rows]
-        if any(given) and not all(given):
-            missing = next(r["_row"] for r in rows if r.get(col) is None)
-            report.add(
-                missing, col, None, f"{col} is given for some pressures of {field_name!r} but not this one"
-            )
-            ok = False
-    if not ok:
-        return None
-    return [
-        {"pressure_psia": r["pressure"], "z_factor": r.get("z_factor"), "bg_rcf_per_scf": r.get("bg")}
-        for r in rows
-    ]
-
-
 def _same_points(a: list[dict], b: list[dict]) -> bool:
     from .plan import same
 
@@ -322,21 +342,10 @@ def plan_volumetrics(session: Session, parsed: Parsed, plan: UploadPlan, replace
     names = Names(session, {r["field"] for r in parsed.records}, report, plan.asset_ids)
     for r in parsed.records:
         row = r["_row"]
-        if not r["giip_low"] <= r["giip_best"] <= r["giip_high"]:
-            report.add(row, None, None, "GIIP must be ordered low ≤ best ≤ high")
+        checked = check_volumetric_row(r, report)
+        if checked is None:
             continue
-        inputs = _mc_inputs(r, report)
-        if inputs is False:
-            continue
-        method = r.get("method") or ("monte_carlo" if inputs else "deterministic")
-        if method == "monte_carlo" and not inputs:
-            report.add(
-                row,
-                "method",
-                method,
-                "a Monte Carlo estimate needs the input ranges (rock_volume_low_… to bgi_high_…)",
-            )
-            continue
+        method, inputs = checked
         f = names.field(r["field"], row)
         if f is None:
             continue
@@ -370,36 +379,6 @@ def plan_volumetrics(session: Session, parsed: Parsed, plan: UploadPlan, replace
             "a volumetric estimate for this field and date",
         )
         plan.field_ids.add(f.id)
-
-
-def _mc_inputs(r: dict, report) -> dict | None | bool:
-    """The Monte Carlo ranges of a row (None if none given, False if they are unusable)."""
-    given = {f"{p}_{c}": r.get(f"{p}_{c}") for p in MC_PARAMETERS for c in CASES}
-    if all(v is None for v in given.values()):
-        return None
-    missing = [k for k, v in given.items() if v is None]
-    if missing:
-        report.add(r["_row"], None, None, f"Monte Carlo inputs are incomplete: missing {', '.join(missing)}")
-        return False
-    out = {}
-    for p in MC_PARAMETERS:
-        low, best, high = (given[f"{p}_{c}"] for c in CASES)
-        if not low <= best <= high:
-            report.add(r["_row"], f"{p}_low", low, f"{p} must be ordered low ≤ best ≤ high")
-            return False
-        out[MC_STORED[p]] = {"low": low, "best": best, "high": high}
-    b = {p: given[f"{p}_best"] for p in MC_PARAMETERS}
-    product_bscf = b["rock_volume"] * b["net_to_gross"] * b["porosity"] * b["gas_saturation"] / b["bgi"] / 1e9
-    if abs(product_bscf - r["giip_best"]) > VOLUMETRIC_CHECK_FRAC * r["giip_best"]:
-        report.add(
-            r["_row"],
-            "giip_best",
-            r["giip_best"],
-            f"differs by more than "
-            f"{VOLUMETRIC_CHECK_FRAC:.0%} from the product of the best inputs ({product_bscf:,.4g} Bscf)",
-            "warning",
-        )
-    return out
 
 
 write_volumetrics = _write_rows(VolumetricEstimate)

@@ -7,6 +7,7 @@ from typing import Literal
 
 MAX_PROBLEMS_SHOWN = 200
 MAX_PROBLEMS_KEPT = 5000  # beyond this only the counts grow (a hostile file cannot fill memory)
+MAX_ERRORS_CHECKED = 10_000  # past this many errors a file's check stops (the rest is not read)
 
 
 @dataclass(frozen=True)
@@ -56,6 +57,8 @@ class UploadRejectedError(Exception):
 def _short(value, limit: int = 80) -> str | None:
     if value is None:
         return None
+    if isinstance(value, int) and value.bit_length() > 1024:  # str() would refuse past 4,300 digits
+        return f"a number of about {int(value.bit_length() * 0.30103) + 1:,} digits"
     text = str(value)
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
@@ -77,6 +80,20 @@ class ValidationReport:
             self.warning_count += 1
         if len(self.problems) < MAX_PROBLEMS_KEPT:
             self.problems.append(Problem(row, column, _short(value), message, severity))
+
+    @property
+    def full(self) -> bool:
+        """So many errors that checking the rest of the file would only cost time."""
+        return self.error_count >= MAX_ERRORS_CHECKED
+
+    def stop(self, where: str) -> None:
+        """Say that checking stopped (kept even past :data:`MAX_PROBLEMS_KEPT`: it is shown first)."""
+        self.error_count += 1
+        message = (
+            f"checking stopped after {MAX_ERRORS_CHECKED:,} errors at {where}; the rest of the file was "
+            "not checked: correct these and upload it again"
+        )
+        self.problems.append(Problem(None, None, None, message))
 
     def note(self, text: str) -> None:
         if text not in self.notes:

@@ -1,37 +1,41 @@
 """Check an upload against the database (dry run) and store it all or nothing.
 
-:func:`check_upload` reads and writes nothing. :func:`store_upload` opens its own
-transaction, takes the ingest lock (an advisory lock on PostgreSQL; SQLite's write lock,
-taken by a first write before any read), checks the file again against what is
-stored *now*, and writes it with its upload record, history and recompute jobs, or
-nothing. Uploads therefore serialise: concurrent uploads of the same rows store them
-once, and a repeat of a stored file changes nothing.
+Checking has two stages: :func:`read_upload` reads the file and checks every cell and row
+without the database (the slow part, bounded by the upload budget), and :func:`plan_upload`
+checks the rows against what is stored. :func:`check_upload` does both and writes nothing.
+:func:`store_upload` reads the file first, *outside* any lock, then opens its own transaction,
+takes the ingest lock (an advisory lock on PostgreSQL; SQLite's write lock, taken by a first
+write before any read), plans against what is stored *now*, and writes it with its upload
+record, history and recompute jobs, or nothing. Writers therefore serialise only for the
+planning and the writing: a small upload never waits behind a slow file's parsing, concurrent
+uploads of the same rows store them once, and a repeat of a stored file changes nothing.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import hashlib
 import logging
 from dataclasses import dataclass
 
-from sqlalchemy import delete, select, text
+from sqlalchemy import select, text
 from sqlalchemy.exc import IntegrityError, OperationalError
 from sqlalchemy.orm import Session
 
-from ...db.base import utcnow
-from ...db.models import Field, StagedUpload, Upload
+from ...db.models import Field, Upload
 from ...db.session import Database
 from .. import audit
 from ..audit import SYSTEM, Actor
-from ..jobs import enqueue_field_recompute
-from . import history, portfolio
+from ..jobs.queue import enqueue_field_recompute
+from . import forecast, history, portfolio
+from .files.table import ReadLimits
+from .files.tabular import TableError, read_table
 from .kinds import file_kind
-from .parse import ReadOptions, check_options, parse_table
+from .parse import Parsed, ReadOptions, check_options, parse_table
 from .plan import UploadPlan, check_repeated_keys
 from .report import ValidationReport
-from .tabular import TableError, read_table
-from .xlsx import XlsxLimits
+from .staging import purge_expired
 
 log = logging.getLogger(__name__)
 INGEST_LOCK_KEY = 7284  # arbitrary, next to the migration lock (7283)
@@ -45,7 +49,88 @@ PLANNERS = {
     "surveys": (history.plan_surveys, history.write_surveys),
     "production": (history.plan_production, history.write_production),
     "volumetrics": (portfolio.plan_volumetrics, portfolio.write_volumetrics),
+    "well_tests": (forecast.plan_well_tests, forecast.write_well_tests),
+    "field_plans": (forecast.plan_field_plans, forecast.write_field_plans),
+    "planned_wells": (forecast.plan_planned_wells, forecast.write_planned_wells),
 }
+
+
+@dataclass(frozen=True)
+class ReadUpload:
+    """A file read and checked cell by cell and row by row, before any database read."""
+
+    kind: str
+    filename: str
+    sha256: str
+    size_bytes: int
+    options: ReadOptions
+    report: ValidationReport  # the file's own problems; each plan gets a copy
+    parsed: Parsed | None  # None when the file could not be read or has no usable rows
+
+    def fresh_report(self) -> ValidationReport:
+        r = self.report
+        return dataclasses.replace(r, problems=list(r.problems), columns=list(r.columns), notes=list(r.notes))
+
+
+def read_upload(
+    *,
+    kind: str,
+    data: bytes,
+    filename: str = "",
+    options: ReadOptions | None = None,
+    today: dt.date | None = None,
+    xlsx_limits: ReadLimits | None = None,
+) -> ReadUpload:
+    """Read and check the file itself: bytes, header, units, every cell, repeated keys. No
+    database is touched, so this runs before any lock is taken."""
+    spec = file_kind(kind)
+    options = options or ReadOptions()
+    report = ValidationReport(kind=kind)
+
+    def done(parsed: Parsed | None = None) -> ReadUpload:
+        digest = hashlib.sha256(data).hexdigest()
+        return ReadUpload(kind, filename, digest, len(data), options, report, parsed)
+
+    for problem in check_options(options):
+        report.add(None, None, None, problem)
+    if report.error_count:
+        return done()
+    if not data:
+        report.add(None, None, None, "the file is empty")
+        return done()
+    try:
+        table = read_table(
+            data,
+            filename=filename,
+            delimiter=options.delimiter,
+            limits=xlsx_limits,
+            encoding=options.encoding,
+        )
+    except TableError as exc:
+        report.add(None, None, None, exc.problem.message)
+        return done()
+    parsed = parse_table(spec, table, options, report, today=today or dt.date.today())
+    del table  # the cells are no longer needed; only the typed rows are
+    if report.rows_total == 0 and not report.error_count:
+        report.add(None, None, None, "the file has a header but no data rows")
+    if not parsed.records:
+        return done()
+    parsed.records = check_repeated_keys(spec, parsed.records, report)
+    return done(parsed)
+
+
+def plan_upload(
+    session: Session, read: ReadUpload, *, replace: bool = False, asset_ids: frozenset[int] | None = None
+) -> UploadPlan:
+    """Check the read rows against the database: what committing would add, replace or refuse.
+    ``asset_ids`` limits the fields rows may name to those assets (a user's asset access)."""
+    report = read.fresh_report()
+    plan = UploadPlan(read.kind, read.filename, read.sha256, read.size_bytes, report, read.options)
+    plan.asset_ids = asset_ids
+    if read.parsed is not None and read.parsed.records:
+        planner, _ = PLANNERS[read.kind]
+        planner(session, read.parsed, plan, replace)
+    return plan
 
 
 def check_upload(
@@ -57,44 +142,14 @@ def check_upload(
     options: ReadOptions | None = None,
     replace: bool = False,
     today: dt.date | None = None,
-    xlsx_limits: XlsxLimits | None = None,
+    xlsx_limits: ReadLimits | None = None,
     asset_ids: frozenset[int] | None = None,
 ) -> UploadPlan:
-    """Parse and check every row; nothing is written. ``plan.report`` lists every problem.
-
-    ``asset_ids`` limits the fields rows may name to those assets (a user's asset access)."""
-    spec = file_kind(kind)
-    options = options or ReadOptions()
-    report = ValidationReport(kind=kind)
-    plan = UploadPlan(kind, filename, hashlib.sha256(data).hexdigest(), len(data), report, options)
-    plan.asset_ids = asset_ids
-    for problem in check_options(options):
-        report.add(None, None, None, problem)
-    if report.error_count:
-        return plan
-    if not data:
-        report.add(None, None, None, "the file is empty")
-        return plan
-    try:
-        table = read_table(
-            data,
-            filename=filename,
-            delimiter=options.delimiter,
-            limits=xlsx_limits,
-            encoding=options.encoding,
-        )
-    except TableError as exc:
-        report.add(None, None, None, exc.problem.message)
-        return plan
-    parsed = parse_table(spec, table, options, report, today=today or dt.date.today())
-    if report.rows_total == 0 and not report.error_count:
-        report.add(None, None, None, "the file has a header but no data rows")
-    if not parsed.records:
-        return plan
-    parsed.records = check_repeated_keys(spec, parsed.records, report)
-    planner, _ = PLANNERS[kind]
-    planner(session, parsed, plan, replace)
-    return plan
+    """Parse and check every row; nothing is written. ``plan.report`` lists every problem."""
+    read = read_upload(
+        kind=kind, data=data, filename=filename, options=options, today=today, xlsx_limits=xlsx_limits
+    )
+    return plan_upload(session, read, replace=replace, asset_ids=asset_ids)
 
 
 @dataclass
@@ -109,7 +164,7 @@ def take_ingest_lock(session: Session) -> None:
     """Serialise writers of uploads (the transaction's first statement); clear expired staging."""
     if session.get_bind().dialect.name == "postgresql":
         session.execute(text("SELECT pg_advisory_xact_lock(:k)"), {"k": INGEST_LOCK_KEY})
-    session.execute(delete(StagedUpload).where(StagedUpload.expires_at < utcnow()))
+    purge_expired(session)
 
 
 def store_upload(
@@ -124,26 +179,24 @@ def store_upload(
     actor: Actor = SYSTEM,
     expected_digest: str | None = None,
     today: dt.date | None = None,
-    xlsx_limits: XlsxLimits | None = None,
+    xlsx_limits: ReadLimits | None = None,
     asset_ids: frozenset[int] | None = None,
 ) -> StoreResult:
-    """Check and write an upload in one transaction; write nothing unless it is clean."""
+    """Read the file (no lock held), then plan and write it in one transaction under the ingest
+    lock; write nothing unless it is clean and, with ``expected_digest``, unchanged since the
+    preview."""
+    read = read_upload(
+        kind=kind, data=data, filename=filename, options=options, today=today, xlsx_limits=xlsx_limits
+    )
+    if not read.report.ok:  # the file's own errors: no lock and no database needed
+        with db.session() as session:
+            return StoreResult("rejected", plan_upload(session, read, replace=replace, asset_ids=asset_ids))
     for attempt in range(1, RETRIES + 1):
         try:
             with db.session() as session:
                 take_ingest_lock(session)
-                plan = check_upload(
-                    session,
-                    kind=kind,
-                    data=data,
-                    filename=filename,
-                    options=options,
-                    replace=replace,
-                    today=today,
-                    xlsx_limits=xlsx_limits,
-                    asset_ids=asset_ids,
-                )
-                result = _decide(plan, accept_warnings, expected_digest)
+                plan = plan_upload(session, read, replace=replace, asset_ids=asset_ids)
+                result = _decide(plan, accept_warnings, expected_digest) or _taken_names(plan)
                 if result is not None:
                     session.rollback()
                     return result
@@ -166,6 +219,17 @@ def _decide(plan: UploadPlan, accept_warnings: bool, expected_digest: str | None
     if not plan.changes_anything:
         return StoreResult("unchanged", plan)
     return None
+
+
+def _taken_names(plan: UploadPlan) -> StoreResult | None:
+    """New fields whose names exist outside the user's assets: the preview read them as unknown
+    (no oracle); storing them would break the names' uniqueness, so it is refused here."""
+    taken = plan.extra.get("taken_names")
+    if not taken:
+        return None
+    for row, name in sorted(taken.items()):
+        plan.report.add(row, "field", name, portfolio.TAKEN_NAME)
+    return StoreResult("rejected", plan)
 
 
 def _write(session: Session, plan: UploadPlan, actor: Actor) -> StoreResult:

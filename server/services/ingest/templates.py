@@ -8,7 +8,7 @@ import re
 
 import xlsxwriter
 
-from .export import csv_bytes, safe_cell
+from .files.export import csv_bytes, safe_cell
 from .kinds import FileKind
 
 _ISO_DATE = re.compile(r"\d{4}-\d{2}-\d{2}")

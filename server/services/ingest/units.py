@@ -126,6 +126,33 @@ def _gas(sc: StandardConditions) -> Quantity:
     return Quantity("gas volume", "mscf", units, ("mscf", "mmscf", "bscf", "sm3", "e3m3", "e6m3"), {})
 
 
+def _gas_rate(sc: StandardConditions) -> Quantity:
+    """Gas rates (stored Mscf/d); the same standard-condition rules as gas volumes."""
+    k = scf_per_sm3(sc)
+    at = f"at {sc.label}"
+    metric = f"at 15 °C, 101.325 kPa, converted with {k:.4f} scf per m³"
+    mscfd = Unit("mscf_per_day", f"thousand scf per day {at}", lambda x: x)
+    mmscfd = Unit("mmscf_per_day", f"million scf per day {at}", lambda x: x * 1e3)
+    e3m3d = Unit("e3m3_per_day", f"thousand m³ per day {metric}", lambda x: x * k)
+    units = {
+        "mscf_per_day": mscfd,
+        "mscfd": mscfd,
+        "mcfd": mscfd,
+        "mmscf_per_day": mmscfd,
+        "mmscfd": mmscfd,
+        "sm3_per_day": Unit("sm3_per_day", f"m³ per day {metric}", lambda x: x * k / 1000.0),
+        "e3m3_per_day": e3m3d,
+        "e3m3d": e3m3d,
+    }
+    return Quantity(
+        "gas rate",
+        "mscf_per_day",
+        units,
+        ("mscf_per_day", "mmscf_per_day", "sm3_per_day", "e3m3_per_day"),
+        {},
+    )
+
+
 def _giip(sc: StandardConditions) -> Quantity:
     k = scf_per_sm3(sc)
     metric = f"at 15 °C, 101.325 kPa, converted with {k:.4f} scf per m³"
@@ -215,6 +242,7 @@ def quantities(atmosphere_psia: float, sc: StandardConditions) -> dict[str, Quan
     return {
         "pressure": _pressure(atmosphere_psia),
         "gas": _gas(sc),
+        "gas_rate": _gas_rate(sc),
         "giip": _giip(sc),
         "liquid": _liquid(),
         "depth": _depth(),

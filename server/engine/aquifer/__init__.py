@@ -1,0 +1,1 @@
+"""Aquifer influx: dimensionless solutions, Laplace inversion, influx models, the aquifer history match."""

@@ -1,0 +1,261 @@
+"""A gas tank with an aquifer, solved for its whole pressure history at once.
+
+The tank balance at each step end t_n of a uniform grid (Havlena-Odeh form divided by B_g;
+u = (p/z)/(p_i/z_i)):
+
+    R_n(p) = u_n · [1 − c_e (p_i − p_n) − (We_n − W_pn B_w)/(G B_gi)] − (1 − G_pn/G) = 0
+
+with the influx We = K Δ(p) linear in the pressures (:mod:`.influx`: K a lower-triangular
+Toeplitz kernel on the uniform grid, Δ the pressure drops of the model's step convention). The
+Jacobian ∂R/∂p is lower triangular, so Newton's method on the whole history costs a
+few triangular solves. Model p/z at a survey time uses the survey's own cumulative
+production with the influx interpolated in time between grid points (influx is
+smooth; production need not be).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.interpolate import CubicSpline
+from scipy.linalg import solve_triangular
+
+from ..errors import InsufficientDataError
+from ..inputs import FieldInputs
+from ..prepare.cumulative import cumulative_at_times, production_start_t_days
+from ..prepare.points import PreparedData, field_z_function
+from ..pvt.gas import bg_rcf_per_scf
+from ..tank.balance_terms import (
+    DEFAULT_BW_RB_PER_STB,
+    field_effective_compressibility_per_psi,
+    produced_water_is_liquid,
+)
+from ..units import FT3_PER_BBL, StandardConditions
+from .influx import causal_convolution, lower_toeplitz
+
+#: Grid steps: about one per production period, at least this many...
+MIN_STEPS = 24
+#: ...and at most this many (longer histories get longer steps).
+MAX_STEPS = 480
+_NEWTON_TOL_PSI = 1e-7
+_NEWTON_MAX_ITER = 30
+
+
+class PzTable:
+    """p/z as a function of p at reservoir temperature, from the field's own z source."""
+
+    def __init__(self, z_of_p, t_degF, p_max_psia, conditions):
+        # z on a coarse grid, then a cubic spline onto the fine one: z(p) is smooth and the
+        # z source is the costly part (spline error below 1e-7 in z for a correlation, ~4e-6 for a
+        # lab table whose monotone cubic has curvature kinks at its nodes).
+        coarse = np.linspace(14.7, p_max_psia, 161)
+        spline = CubicSpline(coarse, np.asarray(z_of_p(coarse), float))
+        self.p = np.linspace(14.7, p_max_psia, 3001)
+        self.z = spline(self.p)
+        self.phi = self.p / self.z
+        if np.any(np.diff(self.phi) <= 0):
+            raise InsufficientDataError("p/z does not increase with pressure over the table range")
+        self.dphi = np.gradient(self.phi, self.p)
+        # B_g per unit z/p [rb/scf x psia]: Bg = bg_coef * z / p
+        self.bg_coef = float(bg_rcf_per_scf(1.0, t_degF, 1.0, conditions)) / FT3_PER_BBL
+
+    def pz(self, p):
+        return np.interp(p, self.p, self.phi)
+
+    def dpz(self, p):
+        return np.interp(p, self.p, self.dphi)
+
+    def p_of_pz(self, pz):
+        return np.interp(pz, self.phi, self.p)
+
+
+@dataclass(frozen=True)
+class TankGrid:
+    """A field's production on a uniform step grid, and its observations (included surveys)."""
+
+    t_start_days: float  # absolute time of the start of production
+    t_days: np.ndarray  # step ends after the start: dt, 2 dt, ..., N dt
+    gp_scf: np.ndarray  # cumulative (wet) gas at the step ends
+    wp_rb: np.ndarray  # cumulative produced water x B_w at the step ends
+    obs_t_days: np.ndarray  # survey times after the start (<= 0 before production)
+    obs_gp_scf: np.ndarray
+    obs_wp_rb: np.ndarray
+    obs_pz_psia: np.ndarray
+    obs_weight: np.ndarray
+    obs_interp: np.ndarray  # (surveys, N + 1): linear interpolation from t_0 = 0, t_1..t_N
+    initial_pressure_psia: float  # as given for the field
+    ce_per_psi: float
+    t_degF: float
+    conditions: StandardConditions
+    table: PzTable
+
+    @property
+    def n_steps(self) -> int:
+        return int(self.t_days.size)
+
+
+def interpolation_matrix(x, knots) -> np.ndarray:
+    """A with (A f)_i = linear interpolation at x_i of f given at ``knots`` (clamped at the ends)."""
+    x = np.clip(np.asarray(x, float), knots[0], knots[-1])
+    j = np.clip(np.searchsorted(knots, x, side="right") - 1, 0, knots.size - 2)
+    frac = (x - knots[j]) / (knots[j + 1] - knots[j])
+    a = np.zeros((x.size, knots.size))
+    rows = np.arange(x.size)
+    a[rows, j] = 1.0 - frac
+    a[rows, j + 1] += frac
+    return a
+
+
+def tank_grid(
+    inputs: FieldInputs, prepared: PreparedData, *, bw_rb_per_stb: float = DEFAULT_BW_RB_PER_STB
+) -> TankGrid:
+    """Put a field's production and included surveys on a uniform grid."""
+    ends = np.asarray(prepared.production_end_t_days, float)
+    if ends.size == 0:
+        raise InsufficientDataError("no production: there is nothing to match")
+    pts = [p for p in prepared.points if p.included]
+    t0 = production_start_t_days(ends)
+    obs_abs = np.array([p.t_days for p in pts], float)
+    t_end = max(float(ends[-1]), float(obs_abs.max()) if obs_abs.size else 0.0) - t0
+    periods = np.diff(np.concatenate([[t0], ends]))
+    n = int(np.clip(np.ceil(t_end / np.median(periods) - 1e-9), MIN_STEPS, MAX_STEPS))
+    t = t_end / n * np.arange(1, n + 1)
+    gas_bscf = np.diff(np.concatenate([[0.0], prepared.cumulative_gas_at_end_bscf]))
+    water = inputs.production_water_stb
+    wp_grid = np.zeros(n)
+    wp_obs = np.zeros(obs_abs.size)
+    if produced_water_is_liquid(inputs):
+        wp_grid = cumulative_at_times(t0 + t, ends, water) * bw_rb_per_stb
+        wp_obs = cumulative_at_times(obs_abs, ends, water) * bw_rb_per_stb
+    # The same z as the prepared points: the lab table or the correlation for the (well-stream)
+    # gas that prepare used. prepare has no public name for it yet.
+    z_of_p, _, _ = field_z_function(inputs, prepared.fluid or inputs.fluid, [])
+    table = PzTable(
+        z_of_p,
+        inputs.reservoir_temperature_degF,
+        1.35 * inputs.initial_pressure_psia,
+        inputs.standard_conditions,
+    )
+    obs_t = obs_abs - t0
+    return TankGrid(
+        t_start_days=t0,
+        t_days=t,
+        gp_scf=cumulative_at_times(t0 + t, ends, gas_bscf) * 1e9,
+        wp_rb=wp_grid,
+        obs_t_days=obs_t,
+        obs_gp_scf=np.array([p.gp_bscf for p in pts], float) * 1e9,
+        obs_wp_rb=wp_obs,
+        obs_pz_psia=np.array([p.pz_psia for p in pts], float),
+        obs_weight=np.array([p.weight for p in pts], float),
+        obs_interp=interpolation_matrix(obs_t, np.concatenate([[0.0], t])),
+        initial_pressure_psia=float(inputs.initial_pressure_psia),
+        ce_per_psi=field_effective_compressibility_per_psi(inputs),
+        t_degF=float(inputs.reservoir_temperature_degF),
+        conditions=inputs.standard_conditions,
+        table=table,
+    )
+
+
+@dataclass(frozen=True)
+class InfluxModel:
+    """How an aquifer's influx depends on the pressures: We = T(c) Δ(p_i, p).
+
+    T(c) is the lower-triangular Toeplitz kernel with first column c (uniform grid).
+    """
+
+    drops: object  # callable (p_i, p) -> Δ
+    bands: tuple[tuple[int, float], ...]  # ∂Δ_j/∂p_i = coef where j = i + offset
+
+
+def dwe_dp_column(kernel_column: np.ndarray, bands) -> np.ndarray:
+    """First column of ∂We/∂p = T(c) ∂Δ/∂p, itself lower Toeplitz: m_k = Σ coef c_{k − offset}."""
+    m = np.zeros_like(kernel_column)
+    for offset, coef in bands:
+        m[offset:] += coef * kernel_column[: kernel_column.size - offset]
+    return m
+
+
+@dataclass
+class TankState:
+    """A solved pressure history."""
+
+    p_psia: np.ndarray
+    we_rb: np.ndarray
+    dwe_dp_column: np.ndarray
+    converged: bool
+
+
+class TankSolver:
+    """Solve the tank balance for given G, p_i and aquifer kernel; observe p/z at the surveys."""
+
+    def __init__(self, grid: TankGrid, influx: InfluxModel):
+        self.grid = grid
+        self.influx = influx
+        self.table = grid.table
+
+    def gas_pore_volume_rb(self, g_scf, pi):
+        return g_scf * self.table.bg_coef / self.table.pz(pi)  # G B_gi, B_gi = coef z_i / p_i
+
+    def influx_at(self, p, pi, kernel_column):
+        return causal_convolution(kernel_column, self.influx.drops(pi, p))
+
+    def residual(self, p, we, g_scf, pi):
+        g = self.grid
+        u = self.table.pz(p) / self.table.pz(pi)
+        d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
+        return u * d - (1.0 - g.gp_scf / g_scf)
+
+    def jacobian_p(self, p, we, g_scf, pi, m_column):
+        """∂R/∂p: lower triangular."""
+        g, tab = self.grid, self.table
+        pz_i = tab.pz(pi)
+        gpv = self.gas_pore_volume_rb(g_scf, pi)
+        u = tab.pz(p) / pz_i
+        d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / gpv
+        jac = lower_toeplitz(m_column)
+        jac *= (-u / gpv)[:, None]
+        jac[np.diag_indices_from(jac)] += tab.dpz(p) / pz_i * d + u * g.ce_per_psi
+        return jac
+
+    def solve(self, g_scf, pi, kernel_column, p_start=None) -> TankState:
+        """Newton's method on the whole pressure history (the Jacobian is refreshed every step:
+        with a strong aquifer a frozen one overshoots)."""
+        g, tab = self.grid, self.table
+        m = dwe_dp_column(kernel_column, self.influx.bands)
+        if p_start is None:  # the volumetric history
+            p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
+        p = np.clip(np.asarray(p_start, float), tab.p[0], tab.p[-1])
+        converged = False
+        for _ in range(_NEWTON_MAX_ITER):
+            we = self.influx_at(p, pi, kernel_column)
+            r = self.residual(p, we, g_scf, pi)
+            jac = self.jacobian_p(p, we, g_scf, pi, m)
+            step = solve_triangular(jac, -r, lower=True, check_finite=False)
+            if not np.all(np.isfinite(step)):
+                break
+            p_new = np.clip(p + step, tab.p[0], tab.p[-1])
+            done = np.max(np.abs(p_new - p)) < _NEWTON_TOL_PSI
+            p = p_new
+            if done:
+                converged = True
+                break
+        return TankState(p, self.influx_at(p, pi, kernel_column), m, converged)
+
+    def observe(self, we, g_scf, pi, p_grid):
+        """Model p/z at the survey times [psia]."""
+        g, tab = self.grid, self.table
+        we_obs = g.obs_interp[:, 1:] @ we  # We(t_0) = 0
+        pz_i = tab.pz(pi)
+        x = (we_obs - g.obs_wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
+        n = 1.0 - g.obs_gp_scf / g_scf
+        if g.ce_per_psi == 0.0:
+            return pz_i * n / (1.0 - x)
+        p = g.obs_interp[:, 0] * pi + g.obs_interp[:, 1:] @ p_grid
+        for _ in range(6):  # Newton on each survey's own balance
+            u = tab.pz(p) / pz_i
+            d = 1.0 - g.ce_per_psi * (pi - p) - x
+            f = u * d - n
+            df = tab.dpz(p) / pz_i * d + u * g.ce_per_psi
+            p = np.clip(p - f / df, tab.p[0], tab.p[-1])
+        return tab.pz(p)

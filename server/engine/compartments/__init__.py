@@ -1,0 +1,1 @@
+"""Compartments: multi-tank balance and its fit, wells against the field trend."""

@@ -1,0 +1,1 @@
+"""Diagnosis: model comparison, flags and their rules, the one call that runs them."""

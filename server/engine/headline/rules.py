@@ -1,0 +1,129 @@
+"""The automatic basis: move away from the straight line only on decisive evidence.
+
+A model other than the straight p/z line becomes the basis only when all of these hold
+(docs/flags.md "The headline basis"; thresholds are team settings, :class:`FlagThresholds`):
+
+1. the field has depleted enough to judge (no "too little depletion" flag);
+2. the flag of the model's mechanism has fired (overpressure: rock and water expansion;
+   aquifer support: the aquifer models; compartments: the tank networks; one flag for
+   "aquifer or compartment": both families);
+3. the data determine the model: GIIP bounded, no parameter at a search bound, and its
+   interval no wider than ``basis_max_giip_ratio`` (high / low);
+4. it is physically plausible: GIIP above the gas already produced, and for a mechanism
+   that supports the pressure (aquifer, rock and water expansion) below the straight
+   line's (support makes the line overstate, never understate);
+5. it fits better than the straight line by ``model_preference_delta_aicc`` AICc units,
+   or at all when independent evidence points to the mechanism (water-gas ratio rising
+   for an aquifer, an overpressure gradient for rock and water expansion, wells that
+   disagree for compartments).
+
+A well reading near initial pressure while the others deplete is another compartment: the
+connected tank (the line of the other wells) is then the basis. Among qualifying models
+the best AICc wins; where the aquifer and tank-network families both qualify (the data
+cannot tell them apart) the lower GIIP is taken, as the cautious reading.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from ..diagnosis.diagnose import Diagnosis
+from ..diagnosis.flags import Flag
+from ..thresholds import FlagThresholds
+from .types import ModelOutcome
+
+AQUIFERS = ("aquifer_pot", "aquifer_fetkovich", "aquifer_veh_radial")
+NETWORKS = ("two_tank", "multi_tank")
+SUPPORT = (*AQUIFERS, "tank_ce")  # mechanisms that hold the pressure up
+
+
+def _usable(o: ModelOutcome | None, gp_bscf: float, th: FlagThresholds) -> bool:
+    if o is None or not (o.has_results and o.determined) or o.giip_bscf <= gp_bscf:
+        return False
+    low, high = o.giip_low_bscf, o.giip_high_bscf
+    return low is not None and high is not None and low > 0 and high / low <= th.basis_max_giip_ratio
+
+
+def _gain(diag: Diagnosis, model: str) -> float | None:
+    cmp = diag.comparison
+    if cmp is None:
+        return None
+    single, row = cmp.row("single_tank"), cmp.row(model)
+    return None if single is None or row is None else single.aicc - row.aicc
+
+
+def _independent(model: str, ev, th: FlagThresholds) -> bool:
+    """Evidence for the mechanism that does not come from the fit itself."""
+    if model in AQUIFERS:
+        w = ev.water
+        return bool(
+            w
+            and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
+            and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
+        )
+    if model == "tank_ce":
+        g = ev.gradient_psi_per_ft
+        return g is not None and g >= th.overpressure_gradient_psi_per_ft
+    return any(f.disagrees for f in ev.wells)
+
+
+def automatic_basis(
+    outcomes: Sequence[ModelOutcome],
+    flags: Sequence[Flag],
+    diag: Diagnosis,
+    th: FlagThresholds,
+    gp_bscf: float,
+) -> tuple[str | None, str]:
+    """(model key, reason) of the automatic basis; (None, why) when no model has results."""
+    by = {o.model: o for o in outcomes}
+    codes = {f.code for f in flags}
+    line = by.get("single_tank")
+    line_ok = line is not None and line.has_results
+    stay = "single_tank" if line_ok else None
+    if "too_little_depletion" in codes:
+        return stay, "too little depletion to tell mechanisms apart: the straight p/z line, with a wide range"
+    connected = by.get("connected_tank")
+    if "compartment_signature" in codes and _usable(connected, gp_bscf, th):
+        return "connected_tank", (
+            "a well reads near the initial pressure while the others deplete: it sees another "
+            "compartment, so the volume connected to the producers is the line of the other wells"
+        )
+    families = []
+    if "overpressure_signature" in codes:
+        families.append(("tank_ce",))
+    if codes & {"aquifer_signature", "aquifer_or_compartment"}:
+        families.append(AQUIFERS)
+    if codes & {"compartment_signature", "aquifer_or_compartment"}:
+        families.append(NETWORKS)
+    qualified = []
+    for family in families:
+        for model in family:
+            o = by.get(model)
+            gain = _gain(diag, model)
+            if not _usable(o, gp_bscf, th) or gain is None:
+                continue
+            if model in SUPPORT and line_ok and o.giip_bscf >= line.giip_bscf:
+                continue
+            need = 0.0 if _independent(model, diag.evidence, th) else th.model_preference_delta_aicc
+            if gain >= need:
+                qualified.append((o, gain))
+    if not qualified:
+        if not line_ok:
+            return None, "no model has a GIIP and an EUR"
+        why = "no mechanism is both flagged and determined by the data"
+        return "single_tank", why + ": the straight p/z line"
+    aquifer = [q for q in qualified if q[0].model in AQUIFERS]
+    network = [q for q in qualified if q[0].model in NETWORKS]
+    if aquifer and network and "aquifer_or_compartment" in codes:
+        o, gain = min(aquifer[:1] + network[:1], key=lambda q: q[0].giip_bscf)
+        return o.model, (
+            f"an aquifer and a neighbouring tank explain the data comparably; the lower GIIP "
+            f"({o.title}, {o.giip_bscf:.0f} Bscf) is taken as the cautious reading"
+        )
+    o, gain = max(qualified, key=lambda q: q[1])
+    return o.model, (
+        f"its mechanism is flagged, the data determine it, and it fits better than the straight line by "
+        f"{gain:.0f} AICc units ({o.giip_bscf:.0f} against {line.giip_bscf:.0f} Bscf)"
+        if line_ok
+        else f"its mechanism is flagged and the data determine it ({o.giip_bscf:.0f} Bscf)"
+    )

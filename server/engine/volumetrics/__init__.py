@@ -1,0 +1,1 @@
+"""Volumetric GIIP (deterministic and Monte Carlo) and portfolio aggregation."""

@@ -1,0 +1,1 @@
+"""Accounts and access: users, passwords, sessions and tokens, roles and permissions, throttling."""

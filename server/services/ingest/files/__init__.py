@@ -1,0 +1,1 @@
+"""Reading upload bytes (CSV, XLSX, JSON rows) into tables of cells, and cell values."""

@@ -1,0 +1,1 @@
+"""Background work: the job queue, the worker, and the field recompute it runs."""

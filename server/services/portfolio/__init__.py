@@ -1,0 +1,1 @@
+"""Read models of the portfolio and of a field's data pages (plain dataclasses)."""

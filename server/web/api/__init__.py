@@ -1,0 +1,1 @@
+"""The JSON API under /api: twins of the pages, uploads, jobs, accounts and settings."""

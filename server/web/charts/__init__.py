@@ -1,0 +1,1 @@
+"""Pure figure builders: from stored results and display units to plotly figure dicts."""

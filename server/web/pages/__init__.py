@@ -1,0 +1,1 @@
+"""Server-rendered pages, one module per page family."""

@@ -1,0 +1,1 @@
+"""Pydantic schemas of the JSON API (stored units in every name)."""

@@ -1,0 +1,1 @@
+from tests.services.reserves.conftest import people, portfolio  # noqa: F401 - the reserves fixtures
