@@ -25,6 +25,7 @@ from ..prepare.points import PreparedData
 from ..tank.balance_terms import ColePlot, field_cole_plots
 from ..tank.overpressure import single_tank_modelfit, tank_ce_modelfit
 from .compare import ModelComparison, compare_models, curvature_test
+from .explained import off_the_best_model
 from .flag_rules import raise_flags
 from .flags import Evidence, Flag, Outlier, WaterTrend
 
@@ -130,7 +131,11 @@ def diagnose_field(
             )
     cole_plots = _cole_plots(inputs, prepared)
     cole = cole_plots[0].trend if cole_plots else None
-    evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, outliers)
+    candidates = state.outliers if outliers is None else tuple(outliers)
+    off = off_the_best_model(
+        candidates, comparison, fits, prepared, inputs.flag_thresholds.outlier_sigma, state.noise_psia
+    )
+    evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, off)
     labels = tuple(p.compartment for p in prepared.points if p.included)
     flags = raise_flags(evidence, th)
     return Diagnosis(

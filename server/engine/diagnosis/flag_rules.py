@@ -376,7 +376,8 @@ def data_quality(ev: Evidence, th: FlagThresholds) -> list[Flag]:
                 "data_outliers",
                 "warning",
                 "Surveys off the trend",
-                f"{len(outliers)} survey(s) beyond {th.outlier_sigma:g} noise widths of the field trend: "
+                f"{len(outliers)} survey(s) beyond {th.outlier_sigma:g} noise widths of the field trend "
+                "and of the best-ranked model: "
                 f"{text}; "
                 "check them and set aside those that are wrong (with a reason)",
                 {"n_outliers": len(outliers), "worst_sigmas": _r(shown[0].sigmas)},

@@ -1,0 +1,98 @@
+"""Surveys off the straight line that the best-ranked model explains are not data errors.
+
+The outlier candidates come from a trend that assumes one model: the p/z estimate's line
+(its Bonferroni rule sets them aside) or, when the line is refused, each compartment's
+robust trend. On a field the line does not describe (an aquifer lifts the late p/z, a
+neighbouring tank bends it) the survey the line misses most is often the truest one: the
+initial survey above a line flattened by influx is the usual case. Before such a survey is
+reported as a data-quality finding, it is held against the model the data rank first
+(AICc): only a survey that is off that model too, by the same number of noise widths, is
+kept as an outlier. Judging a residual against the model that best describes the data is
+common practice in regression diagnostics (no single source).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+
+from ..modelfit import ModelFit
+from ..prepare.points import PreparedData
+from .compare import ModelComparison
+from .flags import Outlier
+
+#: A model whose residual scatter exceeds the field trends' by more than this factor does not
+#: describe the data well enough to excuse a survey (common practice: about the 1 % point of an
+#: F ratio for a few dozen surveys, rounded).
+ADEQUATE_NOISE_RATIO = 2.0
+
+
+def off_the_best_model(
+    outliers: Sequence[Outlier],
+    comparison: ModelComparison | None,
+    fits: Sequence[ModelFit],
+    prepared: PreparedData,
+    sigma_limit: float,
+    noise_psia: float | None,
+) -> tuple[Outlier, ...]:
+    """The candidates that lie more than ``sigma_limit`` noise widths off the best-ranked model.
+
+    A candidate the model was fitted to is judged by its residual there; one that was set
+    aside before the fits is judged against the model's fitted p/z [psia] interpolated in
+    cumulative production [Bscf] among the same well's fitted surveys (all surveys when the
+    well has fewer than two; the end segments' lines beyond the ends). The noise width is the model's
+    residual standard deviation sqrt(RSS_w / (n − k)) [psia], scaled by the survey's weight.
+    Without a ranked model, or when that model does not describe the data (its noise width
+    more than :data:`ADEQUATE_NOISE_RATIO` times the scatter about the field's robust trends,
+    ``noise_psia``: a model that misses everything explains nothing), every candidate is kept."""
+    best = _best_fit(comparison, fits)
+    if best is None or not outliers:
+        return tuple(outliers)
+    dof = best.n_obs - best.n_params
+    if dof <= 0 or best.rss_psia2 <= 0:
+        return tuple(outliers)
+    sigma = math.sqrt(best.rss_psia2 / dof)
+    if noise_psia is None or sigma > ADEQUATE_NOISE_RATIO * noise_psia:
+        return tuple(outliers)
+    included = [p for p in prepared.points if p.included]
+    fitted = np.asarray(best.fitted_pz_psia, float)
+    if fitted.size != len(included):
+        return tuple(outliers)
+    by_key = {(p.well, p.t_days): p for p in prepared.points}
+    kept = []
+    for o in outliers:
+        point = by_key.get((o.well, o.t_days))
+        if point is None:
+            kept.append(o)
+            continue
+        predicted = _predicted(point, included, fitted)
+        off_sigmas = abs(point.pz_psia - predicted) * math.sqrt(point.weight) / sigma
+        if off_sigmas >= sigma_limit:
+            kept.append(o)
+    return tuple(kept)
+
+
+def _best_fit(comparison: ModelComparison | None, fits: Sequence[ModelFit]) -> ModelFit | None:
+    if comparison is None or not comparison.rows:
+        return None
+    return next((f for f in fits if f.name == comparison.rows[0].name), None)
+
+
+def _predicted(point, included, fitted: np.ndarray) -> float:
+    """The model's p/z at ``point`` [psia]: its fitted value there, or interpolated."""
+    for i, p in enumerate(included):
+        if p is point or (p.well == point.well and p.t_days == point.t_days):
+            return float(fitted[i])
+    same = [i for i, p in enumerate(included) if p.well == point.well]
+    idx = same if len(same) >= 2 else list(range(len(included)))
+    gp = np.array([included[i].gp_bscf for i in idx])
+    order = np.argsort(gp, kind="stable")
+    x, y = gp[order], fitted[idx][order]
+    x0 = float(point.gp_bscf)
+    if x.size >= 2 and (x0 < x[0] or x0 > x[-1]):
+        a, b = (0, 1) if x0 < x[0] else (-2, -1)
+        if x[b] > x[a]:
+            return float(y[a] + (y[b] - y[a]) * (x0 - x[a]) / (x[b] - x[a]))
+    return float(np.interp(x0, x, y))
