@@ -184,3 +184,31 @@ def test_a_tight_pool_never_runs_dry_under_many_reads(tmp_path):
             results = list(pool.map(read, range(50)))
         errors = [r for r in results if r[1] != 200]
         assert not errors, errors
+
+
+def test_open_event_streams_do_not_hold_the_admission_tickets(tmp_path):
+    """One route thread, so one admission ticket: three pages following a queued job's live
+    progress (server-sent events, open for minutes) must leave it free for everyone else.
+    A stream that kept its request session (and ticket) would make the reads below wait."""
+    with live_server("sqlite", tmp_path, fields=1, threads=1, job_runner="external") as live:
+        with live.db.session() as s:
+            job_id = jobs.enqueue_portfolio_recompute(s, reason="waits for a worker").id
+        auth = {"Authorization": f"Bearer {live.token}"}
+        streams, opened = [], []
+        try:
+            for _ in range(3):
+                c = live.client(headers=auth)
+                streams.append(c)
+                cm = c.stream("GET", f"/api/jobs/{job_id}/events")
+                r = cm.__enter__()
+                opened.append(cm)
+                assert r.status_code == 200
+                assert "progress" in next(r.iter_lines())  # the first event has arrived
+            with live.client(headers=auth) as c:
+                for path in ("/api/health", f"/api/fields/{live.field_ids[0]}", "/api/portfolio"):
+                    assert c.get(path).status_code == 200, path
+        finally:
+            for cm in opened:
+                cm.__exit__(None, None, None)
+            for c in streams:
+                c.close()
