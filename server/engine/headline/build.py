@@ -10,7 +10,8 @@ from ..diagnosis.flags import Flag
 from ..inputs import FieldInputs
 from ..prepare.cumulative import recent_rate_bscf_per_day
 from ..prepare.points import PreparedData
-from .connected import connected_tank_fit
+from .connected import apart_wells, connected_tank_fit
+from .neighbour import neighbour_share, neighbour_sigma
 from .outcomes import outcome
 from .ranges import booked_range, sigma_from_interval
 from .rules import automatic_basis
@@ -84,6 +85,9 @@ def choose_basis(
         scatter = sigma_from_interval(o.giip_low_bscf, o.giip_high_bscf, ch.confidence_level)
     pts = [p for p in prepared.points if p.included]
     lab = inputs.lab_table is not None and ch.use_lab_table
+    neighbour_part, neighbour_note = _neighbour(inputs, prepared, diag, o)
+    if neighbour_note:
+        notes.append(neighbour_note)
     low, high, parts = booked_range(
         o,
         _same_volume(o, outcomes),
@@ -92,6 +96,7 @@ def choose_basis(
         late_pressure_psia=min((p.p_datum_psia for p in pts), default=None),
         lab_z=lab,
         th=th,
+        neighbour_sigma=neighbour_part,
     )
 
     def ratio(x):
@@ -118,6 +123,23 @@ def choose_basis(
         engineer_reason=ch.basis_reason if source == "engineer" and ch.basis_model != AUTOMATIC else None,
         notes=tuple(notes) + ((o.eur_method,) if o.eur_method else ()),
     )
+
+
+def _neighbour(inputs, prepared, diag, o: ModelOutcome) -> tuple[float | None, str | None]:
+    """The connected tank's extra range part for gas from the set-apart compartment, and a note."""
+    if o.model != "connected_tank" or o.giip_bscf is None:
+        return None, None
+    apart = apart_wells(diag.wells)
+    share = neighbour_share(inputs, prepared, o.giip_bscf, apart)
+    if share is None:
+        return None, None
+    note = (
+        f"about {100 * share:.0f} % of the gas produced came from the compartment of "
+        f"{', '.join(apart)} (its depletion times the mapped volume beyond the connected tank); "
+        f"the producers' own compartment would then hold about {o.giip_bscf * (1 - share):.1f} Bscf, "
+        "(the range's low end allows for it)"
+    )
+    return neighbour_sigma(share), note
 
 
 def replace_dynamic(evidence, basis: Basis | None):

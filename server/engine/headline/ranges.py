@@ -14,7 +14,10 @@ combining relative uncertainties):
   initial p/z, moves the extrapolated GIIP by ε (1 − D)/D, with D the fall of p/z so
   far (from G = Gp / (1 − (p/z)/(p/z)_i)): small on a depleted field, large on a young one.
   ε is the gauge accuracy over the late pressure, and the z-factor correlation's error
-  (or a laboratory table's).
+  (or a laboratory table's);
+- **neighbour** (connected tank only): the gas a set-apart compartment has given to the
+  producers, sized from its well's depletion and the mapped volume beyond the connected
+  tank (:mod:`.neighbour`).
 """
 
 from __future__ import annotations
@@ -62,6 +65,7 @@ def booked_range(
     late_pressure_psia: float | None,
     lab_z: bool,
     th: FlagThresholds,
+    neighbour_sigma: float | None = None,
 ) -> tuple[float | None, float | None, tuple[RangePart, ...]]:
     """(P90, P10, parts) of GIIP about the basis [Bscf]; P10 is None when the scatter is unbounded."""
     d = max(fall_frac if fall_frac is not None else MIN_FALL_FRAC, MIN_FALL_FRAC)
@@ -74,6 +78,7 @@ def booked_range(
         ("metering", "Metered gas volumes", th.metered_gas_uncertainty_frac),
         ("gauge", "Gauge accuracy", gauge),
         ("z_factor", "z-factor " + ("laboratory table" if lab_z else "correlation"), z_eps * lever),
+        ("neighbour", "Gas from the set-apart compartment", neighbour_sigma),
     ]
     known = [(k, t, s) for k, t, s in raw if s is not None]
     var = sum(s * s for _, _, s in known)

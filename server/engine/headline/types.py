@@ -54,7 +54,7 @@ class ModelOutcome:
 class RangePart:
     """One source of uncertainty in the booked range, as a standard deviation of ln GIIP."""
 
-    key: str  # "scatter", "models", "metering", "gauge", "z_factor"
+    key: str  # "scatter", "models", "metering", "gauge", "z_factor", "neighbour"
     title: str  # for people
     sigma_ln: float  # standard deviation of ln GIIP [-] (x 100: roughly per cent)
     share_frac: float  # its share of the total variance
