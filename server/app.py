@@ -35,6 +35,7 @@ from .web.errors import install_error_handlers
 from .web.limits import UploadLimitMiddleware
 from .web.pages import account as account_pages
 from .web.pages import admin as admin_pages
+from .web.pages import admin_settings as admin_settings_pages
 from .web.pages import field as pages
 from .web.pages import field_data as data_pages
 from .web.pages import field_work as field_pages
@@ -159,6 +160,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(api_settings.router)
     app.include_router(account_pages.router)
     app.include_router(admin_pages.router)
+    app.include_router(admin_settings_pages.router)
     app.include_router(pages.router)
     app.include_router(portfolio_router)
     app.include_router(uploads.router)

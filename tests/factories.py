@@ -16,6 +16,7 @@ from server.db.models import (
     ProductionMonth,
     VolumetricEstimate,
     Well,
+    WellTest,
 )
 from server.engine.pvt.gas import GasFluid
 from server.synthetic.schedule import month_starts
@@ -98,6 +99,21 @@ def add_volumetric_history(
             )
     session.flush()
     return hist
+
+
+def add_well_test(session, well_id: int, *, test_date: dt.date, static_pressure_psia: float, points) -> None:
+    """A multi-rate well test of one day: ``points`` are (rate [Mscf/d], flowing bottom-hole
+    pressure [psia]) pairs."""
+    for q, pwf in points:
+        session.add(
+            WellTest(
+                well_id=well_id,
+                test_date=test_date,
+                rate_mscf_per_day=q,
+                flowing_bhp_psia=pwf,
+                static_pressure_psia=static_pressure_psia,
+            )
+        )
 
 
 def field_with_estimate(db, name: str = "Upland", **field_kwargs) -> int:

@@ -1,4 +1,4 @@
-"""Stage 2 orchestration (server/engine/analysis.py): choices are honoured, the summary
+"""Stage 2 orchestration (server/engine/analysis/): choices are honoured, the summary
 names its interval kinds, the models share the screened points, refusals keep the data."""
 
 import dataclasses

@@ -1,5 +1,6 @@
-"""The three 20-year fields of benchmarks/bench_diagnosis.py (same simulator, same seeds), for
-tests that check the speed-ups of the fitters left the results where they were."""
+"""Three 20-year fields made by the forward simulator: the cases benchmarks/bench_diagnosis.py
+times, and the tests use to check that the speed-ups of the fitters left the results where they
+were."""
 
 import numpy as np
 

@@ -142,12 +142,8 @@ def rebuild(session: Session, review: ReservesReview) -> list[ReconciliationLine
     return lines_of(session, review.id)
 
 
-def assign(
-    session: Session, actor: audit.Actor, review: ReservesReview, field_id: int, category: str, values: dict
-) -> ReconciliationLine:
-    """Set how a field's change in one category splits (``values``: any of ASSIGNABLE; the rest
-    keep their value). Nothing changes on error; :func:`reset` gives the line back to the default."""
-    require_draft(review)
+def _line(session: Session, review: ReservesReview, field_id: int, category: str) -> ReconciliationLine:
+    """The review's line of one field and category; ReservesError when there is none."""
     ln = session.execute(
         select(ReconciliationLine).where(
             ReconciliationLine.review_id == review.id,
@@ -157,6 +153,16 @@ def assign(
     ).scalar_one_or_none()
     if ln is None:
         raise ReservesError(f"no reconciliation line for field {field_id} in category {category!r}")
+    return ln
+
+
+def assign(
+    session: Session, actor: audit.Actor, review: ReservesReview, field_id: int, category: str, values: dict
+) -> ReconciliationLine:
+    """Set how a field's change in one category splits (``values``: any of ASSIGNABLE; the rest
+    keep their value). Nothing changes on error; :func:`reset` gives the line back to the default."""
+    require_draft(review)
+    ln = _line(session, review, field_id, category)
     problems = {}
     for k, v in values.items():
         if k not in ASSIGNABLE:
@@ -198,15 +204,7 @@ def assign(
 def reset(session: Session, actor: audit.Actor, review: ReservesReview, field_id: int, category: str) -> None:
     """Give a line back to the default split (the remainder to revisions)."""
     require_draft(review)
-    ln = session.execute(
-        select(ReconciliationLine).where(
-            ReconciliationLine.review_id == review.id,
-            ReconciliationLine.field_id == field_id,
-            ReconciliationLine.category == category,
-        )
-    ).scalar_one_or_none()
-    if ln is None:
-        raise ReservesError(f"no reconciliation line for field {field_id} in category {category!r}")
+    ln = _line(session, review, field_id, category)
     ln.assigned = False
     audit.record(
         session,

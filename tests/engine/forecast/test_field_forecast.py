@@ -13,15 +13,12 @@ import numpy as np
 import pytest
 
 from server.engine.analysis import analyse_field
-from server.engine.compartments.multitank_fit import fit_two_tank
 from server.engine.forecast.build import forecast_field
 from server.engine.forecast.network_stepper import NetworkStepper
 from server.engine.plan import FieldPlan, WellTest
-from server.engine.prepare.points import prepare
-from server.synthetic.tank import SecondTank, TankSpec, simulate
-from tests.engine.aquifer_cases import FLUID, PI_PSIA, T_DEGF
+from server.synthetic.tank import simulate
 from tests.engine.cases import demo_field_inputs
-from tests.engine.cases import synthetic_field as tank_field
+from tests.engine.two_tanks import two_tank_case
 
 
 @pytest.fixture(scope="module")
@@ -78,17 +75,9 @@ def test_well_tests_replace_the_calibration(amberlode):
 
 
 def test_the_network_stepper_follows_the_forward_two_tank_model():
-    spec = TankSpec(
-        60.0, PI_PSIA, T_DEGF, FLUID, second_tank=SecondTank(40.0, connection_scf_cp_per_day_psi2=0.05)
-    )
-    inputs = tank_field(
-        spec, years=12, rate_mscf_d=12000, wells=[("A", None, 0.0, 1, 120.0, 0.0)], noise_psi=0.5, seed=3
-    )
-    prepared = prepare(inputs)
-    fit = fit_two_tank(inputs, prepared)
-    true = {**fit.params, "giip_tank1_bscf": 60.0, "giip_tank2_bscf": 40.0}
-    true[next(k for k in true if k.startswith("transmissibility"))] = 0.05
-    st = NetworkStepper(inputs, prepared, true)
+    case = two_tank_case()
+    spec, prepared = case.spec, case.prepared
+    st = NetworkStepper(case.inputs, prepared, case.true_params)
     month = 30.4375
     got = []
     for _ in range(60):

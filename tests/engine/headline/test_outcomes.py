@@ -11,14 +11,12 @@ import pytest
 from server.engine.aquifer.extend import WATERED_OUT_PV_FRAC, aquifer_recovery
 from server.engine.aquifer.history_match import fit_aquifer_model
 from server.engine.compartments.extend import two_tank_recovery
-from server.engine.compartments.multitank_fit import fit_two_tank
 from server.engine.headline.outcomes import closed_form_eur_bscf
 from server.engine.modelfit import ModelFit
 from server.engine.prepare.cumulative import recent_rate_bscf_per_day
-from server.engine.prepare.points import prepare
-from server.synthetic.tank import FetkovichAquifer, SecondTank, TankSpec, simulate
+from server.synthetic.tank import FetkovichAquifer, TankSpec, simulate
 from tests.engine.aquifer_cases import FLUID, MONTH_DAYS, PI_PSIA, T_DEGF, synthetic_field
-from tests.engine.cases import synthetic_field as tank_field
+from tests.engine.two_tanks import two_tank_case
 
 
 def _fit(name, g, **params):
@@ -85,20 +83,12 @@ def test_a_fitted_aquifer_model_stepped_on_agrees_with_the_forward_model(aquifer
 
 
 def test_a_two_tank_model_stepped_on_agrees_with_the_forward_model():
-    spec = TankSpec(
-        60.0, PI_PSIA, T_DEGF, FLUID, second_tank=SecondTank(40.0, connection_scf_cp_per_day_psi2=0.05)
-    )
-    inputs = tank_field(
-        spec, years=12, rate_mscf_d=12000, wells=[("A", None, 0.0, 1, 120.0, 0.0)], noise_psi=0.5, seed=3
-    )
-    prepared = prepare(inputs)
-    fit = fit_two_tank(inputs, prepared)
     # The model at the true tank sizes and connection, so only the stepping is tested here.
-    true = {**fit.params, "giip_tank1_bscf": 60.0, "giip_tank2_bscf": 40.0}
-    key = next(k for k in true if k.startswith("transmissibility"))
-    true[key] = 0.05
-    got = two_tank_recovery(inputs, prepared, dataclasses.replace(fit, params=true, giip_bscf=100.0), 0.012)
-    truth = _forward_end(spec, 12000.0, inputs.abandonment_pressure_psia)
+    case = two_tank_case()
+    inputs, prepared = case.inputs, case.prepared
+    fit = dataclasses.replace(case.fit, params=case.true_params, giip_bscf=100.0)
+    got = two_tank_recovery(inputs, prepared, fit, 0.012)
+    truth = _forward_end(case.spec, 12000.0, inputs.abandonment_pressure_psia)
     assert got.reached_abandonment
     assert got.eur_bscf == pytest.approx(truth, rel=0.02)
     assert got.eur_bscf < 100.0 * (1 - prepared.abandonment_pz_psia / prepared.initial_pz_psia)

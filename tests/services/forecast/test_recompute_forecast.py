@@ -11,11 +11,11 @@ import numpy as np
 import pytest
 from sqlalchemy import func, select
 
-from server.db.models import Estimate, FieldPlan, PlannedWell, WellTest
+from server.db.models import Estimate, FieldPlan, PlannedWell
 from server.services.jobs import recompute
 from server.services.jobs.recompute import load_field_inputs, recompute_field
 from server.services.timebase import days_from_date
-from tests.factories import add_volumetric_history, make_field
+from tests.factories import add_volumetric_history, add_well_test, make_field
 from tests.forecast_cases import make_forecast
 
 
@@ -55,16 +55,13 @@ def test_the_plan_and_tests_reach_the_engine_in_its_units(session, field):
         )
     )
     w1 = next(w for w in field.wells if w.name == "W-1")
-    for q, pwf in ((4200.0, 3650.0), (7900.0, 3180.0)):
-        session.add(
-            WellTest(
-                well_id=w1.id,
-                test_date=dt.date(2015, 3, 4),
-                rate_mscf_per_day=q,
-                flowing_bhp_psia=pwf,
-                static_pressure_psia=4100.0,
-            )
-        )
+    add_well_test(
+        session,
+        w1.id,
+        test_date=dt.date(2015, 3, 4),
+        static_pressure_psia=4100.0,
+        points=((4200.0, 3650.0), (7900.0, 3180.0)),
+    )
     session.flush()
     inputs = load_field_inputs(session, field)
     plan = inputs.plan

@@ -16,7 +16,7 @@ from urllib.parse import quote
 import pytest
 from sqlalchemy import select, update
 
-from server.db.models import Asset, Field, FieldPlan, PressureSurvey, ReservesReview, Well, WellTest
+from server.db.models import Asset, Field, FieldPlan, PressureSurvey, ReservesReview, Well
 from server.services.audit import Actor
 from server.services.fieldwork.planrules import DEFAULT_PLAN
 from server.services.jobs import queue as jobs
@@ -24,7 +24,7 @@ from server.services.jobs import runner
 from server.services.reserves import workflow
 from server.web import charts as charts_pkg
 from server.web import pages as pages_pkg
-from tests.factories import add_volumetric_history, make_field
+from tests.factories import add_volumetric_history, add_well_test, make_field
 
 FIELD = '<a href="https://attacker.example/">Field</a>'
 WELL = "<img src=x onerror=alert(1)>W1"
@@ -77,16 +77,13 @@ def hostile_field(db):
         # a plan and a well test, so the forecast and deliverability charts are drawn too
         s.add(FieldPlan(field_id=f.id, **DEFAULT_PLAN))
         hostile = s.execute(select(Well).where(Well.name == WELL)).scalar_one()
-        for rate, pwf in ((5000.0, 2600.0), (9000.0, 2000.0)):
-            s.add(
-                WellTest(
-                    well_id=hostile.id,
-                    test_date=dt.date(2016, 6, 1),
-                    rate_mscf_per_day=rate,
-                    flowing_bhp_psia=pwf,
-                    static_pressure_psia=3000.0,
-                )
-            )
+        add_well_test(
+            s,
+            hostile.id,
+            test_date=dt.date(2016, 6, 1),
+            static_pressure_psia=3000.0,
+            points=((5000.0, 2600.0), (9000.0, 2000.0)),
+        )
         jobs.enqueue_field_recompute(s, [f.id], reason=REASON)
         fid = f.id
     runner.drain(db)

@@ -13,9 +13,10 @@ import datetime as dt
 import pytest
 from sqlalchemy import select
 
-from server.db.models import AuditEvent, FieldPlan, Well, WellTest
+from server.db.models import AuditEvent, FieldPlan, Well
 from server.services.jobs import recompute
 from server.web.templating import fmt
+from tests.factories import add_well_test
 from tests.forecast_cases import make_forecast
 from tests.web.fieldbench import fid, figure, latest, text_of  # noqa: F401 - fid is a fixture
 
@@ -129,16 +130,13 @@ def test_the_stored_forecast_is_shown_with_its_stop_reasons(db, client, fid, wit
     with db.session() as s:
         w1 = s.execute(select(Well).where(Well.field_id == fid, Well.name == "W-1")).scalar_one()
         w1.name = "W-1 <b>"  # a typed name reaches charts escaped
-        for q, pwf in ((4200.0, 3650.0), (7900.0, 3180.0)):
-            s.add(
-                WellTest(
-                    well_id=w1.id,
-                    test_date=dt.date(2015, 3, 4),
-                    rate_mscf_per_day=q,
-                    flowing_bhp_psia=pwf,
-                    static_pressure_psia=4100.0,
-                )
-            )
+        add_well_test(
+            s,
+            w1.id,
+            test_date=dt.date(2015, 3, 4),
+            static_pressure_psia=4100.0,
+            points=((4200.0, 3650.0), (7900.0, 3180.0)),
+        )
     client.post(f"/fields/{fid}/plan", data=_plan_form(client, plateau_rate="10000"))
     page = client.get(f"/fields/{fid}").text
     text = text_of(page)
