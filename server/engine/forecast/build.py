@@ -64,15 +64,16 @@ def check_plan(plan: FieldPlan) -> None:
 
 
 def field_pseudo_pressure(
-    inputs: FieldInputs, prepared: PreparedData, p_max_psia: float
+    inputs: FieldInputs, prepared: PreparedData, p_max_psia: float, p_ref_psia: float = 1.0
 ) -> PseudoPressureTable:
     """The field's m(p) at reservoir temperature: its own z source (lab table or correlation,
-    as the p/z table) and the Lee-Gonzalez-Eakin viscosity of the same gas, to ``p_max_psia``."""
+    as the p/z table) and the Lee-Gonzalez-Eakin viscosity of the same gas, from ``p_ref_psia``
+    (below every flowing pressure of the plan) to ``p_max_psia``."""
     fluid = prepared.fluid or inputs.fluid
     z_of_p, _, _ = field_z_function(inputs, fluid, [])
     t_degF = inputs.reservoir_temperature_degF
     mu = viscosity_lee_gonzalez_eakin_of_p(t_degF, fluid.gas_gravity, z_of_p)
-    return pseudo_pressure_table(z_of_p, mu, p_max_psia)
+    return pseudo_pressure_table(z_of_p, mu, p_max_psia, p_ref_psia=p_ref_psia)
 
 
 def stepper_for(
@@ -152,7 +153,8 @@ def forecast_field(inputs: FieldInputs, prepared: PreparedData, basis: Basis, pa
             [1.35 * inputs.initial_pressure_psia, 1.05 * best.p_psia]
             + [1.05 * t.static_pressure_psia for t in inputs.well_tests]
         )
-        m_of_p = field_pseudo_pressure(inputs, prepared, p_top)
+        p_low = min(1.0, 0.5 * min(v for v in (pwf, plan.compression_min_flowing_bhp_psia) if v is not None))
+        m_of_p = field_pseudo_pressure(inputs, prepared, p_top, p_low)
         notes.append(
             "Deliverability in the pseudo-pressure form q = C [m(p̄) − m(p_wf)]^n (the plan's choice): "
             "m(p) from the field's z and the Lee-Gonzalez-Eakin gas viscosity"

@@ -17,6 +17,7 @@ with :func:`pseudo_pressure_psi2_per_cp` on a grid of pressures.
 
 from __future__ import annotations
 
+from bisect import bisect_right
 from dataclasses import dataclass
 
 import numpy as np
@@ -71,21 +72,33 @@ class PseudoPressureTable:
 
     def __call__(self, p_psia):
         """m(p) [psi²/cP] (scalar or array); pressures beyond the table are refused."""
+        if isinstance(p_psia, float | int):  # the forecast's hot path: plain floats, no numpy
+            return self._scalar(float(p_psia))
         p = np.asarray(p_psia, float)
         if np.any(p < self.p_psia[0]) or np.any(p > self.p_psia[-1]):
-            raise InputRangeError(
-                f"pressure outside the pseudo-pressure table ({self.p_psia[0]:g}-{self.p_psia[-1]:,.0f} psia)"
-            )
-        m = np.interp(p * p, self._p2, self.m_psi2_per_cp)
+            raise self._outside()
+        m = np.interp(p * p, self._lists()[0], self.m_psi2_per_cp)
         return float(m) if m.ndim == 0 else m
 
-    @property
-    def _p2(self) -> np.ndarray:
-        cached = self.__dict__.get("_p2_cache")
+    def _outside(self) -> InputRangeError:
+        return InputRangeError(
+            f"pressure outside the pseudo-pressure table ({self.p_psia[0]:g}-{self.p_psia[-1]:,.0f} psia)"
+        )
+
+    def _lists(self) -> tuple[list, list]:
+        cached = self.__dict__.get("_cache")
         if cached is None:
-            cached = self.p_psia * self.p_psia
-            object.__setattr__(self, "_p2_cache", cached)
+            cached = ((self.p_psia * self.p_psia).tolist(), self.m_psi2_per_cp.tolist())
+            object.__setattr__(self, "_cache", cached)
         return cached
+
+    def _scalar(self, p: float) -> float:
+        p2, m = self._lists()
+        x = p * p
+        if not p2[0] <= x <= p2[-1]:
+            raise self._outside()
+        i = min(max(bisect_right(p2, x), 1), len(p2) - 1)
+        return m[i - 1] + (x - p2[i - 1]) * (m[i] - m[i - 1]) / (p2[i] - p2[i - 1])
 
 
 def pseudo_pressure_table(

@@ -67,6 +67,11 @@ def test_the_table_matches_quad_of_the_projects_z_and_viscosity():
     assert table(5000.0) - table(800.0) == pytest.approx(ref, rel=2e-6)
     with pytest.raises(InputRangeError, match="outside the pseudo-pressure table"):
         table(9000.0)
+    with pytest.raises(InputRangeError, match="outside the pseudo-pressure table"):
+        table(np.array([100.0, 9000.0]))
+    # The scalar path (plain floats, the forecast's) and the array path read the same table.
+    p = np.array([14.7, 333.3, 2718.0, 7999.0])
+    assert table(p) == pytest.approx([table(float(x)) for x in p], rel=1e-12)
 
 
 def test_low_pressure_limit_is_the_pressure_squared_form():
