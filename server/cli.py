@@ -368,6 +368,8 @@ def cmd_analyse(args) -> int:
     if forecast is not None:  # the summary: per case its end, why, EUR and remaining; and the caution
         out["forecast"] = {
             "basis_model": forecast["basis_model"],
+            "deliverability_form": forecast.get("deliverability_form"),
+            "water": (forecast.get("water") or {}).get("sentence"),
             "caution": FORECAST_CAUTION,
             "cases": [
                 {
@@ -378,6 +380,11 @@ def cmd_analyse(args) -> int:
                     "eur_bscf": p["eur_bscf"],
                     "remaining_bscf": p["remaining_bscf"],
                     "yearly_gas_bscf": {str(r["year"]): r["gas_bscf"] for r in p["yearly"]},
+                    "yearly_water_stb": (
+                        {str(r["year"]): r["water_stb"] for r in p["yearly"]}
+                        if p.get("water_stb") is not None
+                        else None
+                    ),
                 }
                 for p in forecast["profiles"]
             ],

@@ -43,3 +43,7 @@ class FieldPlan:
     licence_end_t_days: float | None = None
     planned_wells: tuple[PlannedWell, ...] = ()
     deliverability_exponent: float = 0.85  # n when C is calibrated from monthly rates (common practice)
+    # The back-pressure equation's form: "pressure_squared" q = C (p̄² − p_wf²)^n, or
+    # "pseudo_pressure" q = C [m(p̄) − m(p_wf)]^n (forecast/deliverability.py); planned wells'
+    # C and n are given in the p² form and stay in it.
+    deliverability_form: str = "pressure_squared"

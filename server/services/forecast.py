@@ -50,22 +50,33 @@ def _month_date(t_days: float) -> dt.date:
 
 def yearly_rows(profile: dict) -> list[dict]:
     """One row per calendar year of a stored profile (JSON form): gas produced [Bscf], the
-    year's average calendar rate over its forecast months [Mscf/d], condensate [stb] and the
-    cumulative at the year's last forecast month [Bscf]."""
+    year's average calendar rate over its forecast months [Mscf/d], condensate and water [stb]
+    (None without a condensate or water forecast) and the cumulative at the year's last
+    forecast month [Bscf]."""
     t = profile.get("month_end_t_days") or []
     gas = profile.get("gas_bscf") or []
     cum = profile.get("cumulative_bscf") or []
     cond = profile.get("condensate_stb") or None
+    water = profile.get("water_stb") or None
     rows: dict[int, dict] = {}
     for i, ti in enumerate(t):
         d = _month_date(ti)
         row = rows.setdefault(
             d.year,
-            {"year": d.year, "gas_bscf": 0.0, "condensate_stb": 0.0, "days": 0, "cumulative_bscf": None},
+            {
+                "year": d.year,
+                "gas_bscf": 0.0,
+                "condensate_stb": 0.0,
+                "water_stb": 0.0,
+                "days": 0,
+                "cumulative_bscf": None,
+            },
         )
         row["gas_bscf"] += gas[i] or 0.0
         if cond is not None:
             row["condensate_stb"] += cond[i] or 0.0
+        if water is not None:
+            row["water_stb"] += water[i] or 0.0
         row["days"] += calendar.monthrange(d.year, d.month)[1]
         row["cumulative_bscf"] = cum[i] if i < len(cum) else None
     out = []
@@ -75,6 +86,8 @@ def yearly_rows(profile: dict) -> list[dict]:
         r["average_rate_mscf_per_day"] = r["gas_bscf"] * 1e6 / days
         if cond is None:
             r["condensate_stb"] = None
+        if water is None:
+            r["water_stb"] = None
         out.append(r)
     return out
 

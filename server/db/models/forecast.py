@@ -71,6 +71,9 @@ class FieldPlan(Base):
         CheckConstraint(
             "deliverability_exponent >= 0.5 AND deliverability_exponent <= 1", name="exponent_range"
         ),
+        CheckConstraint(
+            "deliverability_form IN ('pressure_squared', 'pseudo_pressure')", name="deliverability_form_known"
+        ),
     )
     id: Mapped[int] = mapped_column(primary_key=True)
     field_id: Mapped[int] = mapped_column(ForeignKey("field.id", ondelete="CASCADE"), unique=True)
@@ -82,6 +85,10 @@ class FieldPlan(Base):
     economic_limit_mscf_per_day: Mapped[float] = mapped_column(Float, default=0.0)
     licence_end_date: Mapped[dt.date | None] = mapped_column(Date)
     deliverability_exponent: Mapped[float] = mapped_column(Float, default=0.85)
+    # The back-pressure equation's form (engine/forecast/deliverability.FORMS).
+    deliverability_form: Mapped[str] = mapped_column(
+        String(20), default="pressure_squared", server_default="pressure_squared"
+    )
     updated_at: Mapped[dt.datetime] = mapped_column(default=utcnow, onupdate=utcnow)
 
 

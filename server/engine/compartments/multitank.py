@@ -30,6 +30,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputRangeError
+from ..pvt.pseudopressure import pseudo_pressure_psi2_per_cp
 
 
 @dataclass(frozen=True)
@@ -110,8 +111,7 @@ def potential_table(
     else:
         if viscosity_cp_of_p is None:
             raise ValueError("the pseudo-pressure potential needs a gas viscosity function")
-        integrand = 2.0 * p / (np.asarray(viscosity_cp_of_p(p), float) * z)
-        phi = np.concatenate([[0.0], np.cumsum(0.5 * (integrand[1:] + integrand[:-1]) * np.diff(p))])
+        phi = pseudo_pressure_psi2_per_cp(p, z, viscosity_cp_of_p(p))
     grid = np.linspace(pz[0], pz[-1], nodes)
     return PotentialTable(
         float(grid[0]), float(grid[1] - grid[0]), tuple(np.interp(grid, pz, phi).tolist()), method

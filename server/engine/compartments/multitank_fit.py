@@ -21,7 +21,8 @@ from ..errors import InsufficientDataError
 from ..inputs import FieldInputs
 from ..modelfit import ModelFit, parameter_words
 from ..prepare.points import PreparedData
-from ..pvt.gas import gas_density_lb_per_ft3, gas_viscosity_lee_gonzalez_eakin, z_factor
+from ..pvt.gas import z_factor
+from ..pvt.pseudopressure import viscosity_lee_gonzalez_eakin_of_p
 from ..stats import t_multiplier
 from ..tank.pz_estimate import fit_pz_line
 from .multitank import PotentialTable, potential_table, simulate_star_tanks
@@ -132,10 +133,7 @@ def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, 
         return z_factor(p, t_degF, fluid, inputs.choices.z_method)
 
     if potential == "pseudo_pressure" and viscosity_cp_of_p is None:
-
-        def viscosity_cp_of_p(p):
-            rho = gas_density_lb_per_ft3(p, t_degF, z_of_p(p), fluid.gas_gravity)
-            return gas_viscosity_lee_gonzalez_eakin(t_degF, fluid.gas_gravity, rho)
+        viscosity_cp_of_p = viscosity_lee_gonzalez_eakin_of_p(t_degF, fluid.gas_gravity, z_of_p)
 
     pot = potential_table(
         z_of_p,

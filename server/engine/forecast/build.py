@@ -3,7 +3,9 @@
 The basis model (engine/headline) gives the average pressure; its P90/P50/P10 GIIP gives
 the low/best/high cases by scaling the model's GIIP and keeping its other parameters (the
 line's intercept, c_e, the aquifer's strength and time constant, the tanks' connections).
-Each case then runs :func:`.profile.run_case` with the same wells and plan.
+Each case then runs :func:`.profile.run_case` with the same wells and plan. With the plan's
+pseudo-pressure form the wells' back-pressure equation uses the field's m(p) (its own z and
+the Lee-Gonzalez-Eakin viscosity); water follows the gas by the rule of :mod:`.water`.
 """
 
 from __future__ import annotations
@@ -18,12 +20,19 @@ from ..errors import EngineError, InputRangeError, InsufficientDataError
 from ..headline.types import Basis
 from ..inputs import FieldInputs
 from ..plan import FieldPlan
-from ..prepare.points import PreparedData
+from ..prepare.points import PreparedData, field_z_function
+from ..pvt.pseudopressure import (
+    PseudoPressureTable,
+    pseudo_pressure_table,
+    viscosity_lee_gonzalez_eakin_of_p,
+)
 from .aquifer_stepper import AquiferStepper
+from .deliverability import FORMS
 from .network_stepper import NetworkStepper
 from .profile import CaseSettings, cases_of, month_ends_t_days, run_case, stop_sentence
 from .steppers import LineStepper, Stepper, field_pz_table
 from .types import Forecast
+from .water import water_rule
 from .wells import field_wells, recent_volume_per_day
 
 LINE_MODELS = ("single_tank", "tank_ce", "connected_tank", "volumetric")
@@ -48,6 +57,23 @@ def check_plan(plan: FieldPlan) -> None:
         raise InputRangeError(
             f"the deliverability exponent must lie in 0.5-1.0; got {plan.deliverability_exponent}"
         )
+    if plan.deliverability_form not in FORMS:
+        raise InputRangeError(
+            f"unknown deliverability form {plan.deliverability_form!r}; known: {', '.join(FORMS)}"
+        )
+
+
+def field_pseudo_pressure(
+    inputs: FieldInputs, prepared: PreparedData, p_max_psia: float, p_ref_psia: float = 1.0
+) -> PseudoPressureTable:
+    """The field's m(p) at reservoir temperature: its own z source (lab table or correlation,
+    as the p/z table) and the Lee-Gonzalez-Eakin viscosity of the same gas, from ``p_ref_psia``
+    (below every flowing pressure of the plan) to ``p_max_psia``."""
+    fluid = prepared.fluid or inputs.fluid
+    z_of_p, _, _ = field_z_function(inputs, fluid, [])
+    t_degF = inputs.reservoir_temperature_degF
+    mu = viscosity_lee_gonzalez_eakin_of_p(t_degF, fluid.gas_gravity, z_of_p)
+    return pseudo_pressure_table(z_of_p, mu, p_max_psia, p_ref_psia=p_ref_psia)
 
 
 def stepper_for(
@@ -121,7 +147,20 @@ def forecast_field(inputs: FieldInputs, prepared: PreparedData, basis: Basis, pa
         )
     table = field_pz_table(inputs, prepared) if basis.model in LINE_MODELS else None
     best = stepper_for(inputs, prepared, basis.model, params, basis.giip_bscf, basis.giip_bscf, table)
-    wells, well_notes = field_wells(inputs, prepared, plan, pwf, best.p_psia)
+    m_of_p = None
+    if plan.deliverability_form == "pseudo_pressure":
+        p_top = max(
+            [1.35 * inputs.initial_pressure_psia, 1.05 * best.p_psia]
+            + [1.05 * t.static_pressure_psia for t in inputs.well_tests]
+        )
+        p_low = min(1.0, 0.5 * min(v for v in (pwf, plan.compression_min_flowing_bhp_psia) if v is not None))
+        m_of_p = field_pseudo_pressure(inputs, prepared, p_top, p_low)
+        notes.append(
+            "Deliverability in the pseudo-pressure form q = C [m(p̄) − m(p_wf)]^n (the plan's choice): "
+            "m(p) from the field's z and the Lee-Gonzalez-Eakin gas viscosity"
+            + ("; planned wells keep their C and n in the p² form." if plan.planned_wells else ".")
+        )
+    wells, well_notes = field_wells(inputs, prepared, plan, pwf, best.p_psia, m_of_p)
     notes += well_notes
     sep = np.asarray(inputs.production_gas_mscf, float)
     wet = np.diff(np.concatenate([[0.0], prepared.cumulative_gas_at_end_bscf])) * 1e6
@@ -133,6 +172,8 @@ def forecast_field(inputs: FieldInputs, prepared: PreparedData, basis: Basis, pa
             notes.append(
                 f"Condensate follows the gas at the last 12 months' ratio, {cgr * 1e3:.1f} stb/MMscf."
             )
+    water = water_rule(ends, sep, inputs.production_water_stb)
+    notes.append(water.sentence)
     cum_sep = float(np.sum(sep)) / 1e6
     settings = CaseSettings(
         plan=plan,
@@ -144,6 +185,8 @@ def forecast_field(inputs: FieldInputs, prepared: PreparedData, basis: Basis, pa
         abandonment_pressure_psia=p_ab,
         min_flowing_bhp_psia=pwf,
         wells=wells,
+        pseudo_pressure=m_of_p,
+        water=water,
     )
     cases = cases_of(basis.giip_low_bscf, basis.giip_bscf, basis.giip_high_bscf)
     if basis.giip_high_bscf is None:
@@ -169,4 +212,6 @@ def forecast_field(inputs: FieldInputs, prepared: PreparedData, basis: Basis, pa
     deliverability = tuple(d for d, _ in wells)
     if not math.isfinite(best.p_psia):
         raise InsufficientDataError("the basis model's pressure at the end of the history is not finite")
-    return Forecast(basis.model, deliverability, tuple(profiles), tuple(notes))
+    return Forecast(
+        basis.model, deliverability, tuple(profiles), tuple(notes), plan.deliverability_form, water
+    )

@@ -5,6 +5,8 @@ day of the next month, as production periods are stored) the field rate is
 
     q = U · min(q_plateau, Σ_wells C (p̄² − p_wf,min²)^n)            [Mscf/d, calendar]
 
+(or C [m(p̄) − m(p_wf,min)]^n for the wells in the pseudo-pressure form)
+
 with U the uptime fraction and p̄ the month's mid-point average pressure (p_start + p_end)/2
 of the basis model stepped with the month's withdrawal (solved for q: second order in the
 step, where the start-of-month pressure would be first order). p_wf,min is the plan's
@@ -36,7 +38,8 @@ from ..modelfit import HORIZON_YEARS
 from ..plan import FieldPlan
 from .deliverability import potential_mscf_per_day
 from .steppers import Stepper
-from .types import Deliverability, Profile
+from .types import Deliverability, Profile, WaterRule
+from .water import monthly_water_stb
 
 _EPOCH = dt.date(1970, 1, 1)
 
@@ -65,6 +68,8 @@ class CaseSettings:
     abandonment_pressure_psia: float
     min_flowing_bhp_psia: float  # before compression
     wells: tuple[tuple[Deliverability, float], ...]  # (fit, start t_days; -inf for existing wells)
+    pseudo_pressure: object = None  # the field's m(p) table, for wells in the pseudo-pressure form
+    water: WaterRule | None = None  # how produced water follows the gas
 
     def pwf_psia(self, t_days: float) -> float:
         p = self.plan
@@ -73,9 +78,9 @@ class CaseSettings:
             return pwf
         return self.min_flowing_bhp_psia
 
-    def active(self, t_days: float) -> tuple[tuple[float, float], ...]:
-        """(C, n) of the wells on stream at ``t_days``."""
-        return tuple((d.c_mscf_per_day_psi2n, d.n) for d, start in self.wells if start <= t_days)
+    def active(self, t_days: float) -> tuple[tuple[float, float, str], ...]:
+        """(C, n, form) of the wells on stream at ``t_days``."""
+        return tuple((d.c_mscf_per_day_psi2n, d.n, d.form) for d, start in self.wells if start <= t_days)
 
 
 def _field_rate(s: CaseSettings, t_a: float, t_b: float):
@@ -83,9 +88,10 @@ def _field_rate(s: CaseSettings, t_a: float, t_b: float):
     pwf = s.pwf_psia(t_a)
     wells = s.active(t_a + 0.5 * (t_b - t_a))
     u, plateau = s.plan.uptime_frac, s.plan.plateau_rate_mscf_per_day
+    m_of_p = s.pseudo_pressure
 
     def rate(p_mid: float) -> float:
-        d = potential_mscf_per_day(wells, p_mid, pwf)
+        d = potential_mscf_per_day(wells, p_mid, pwf, m_of_p)
         return u * (d if plateau is None else min(plateau, d))
 
     return rate, pwf
@@ -165,6 +171,7 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
         stop_reason=reason,
         eur_bscf=eur,
         remaining_bscf=eur - s.cumulative_separator_gas_bscf,
+        water_stb=monthly_water_stb(s.water, cum, gas_bscf, s.cumulative_separator_gas_bscf),
     )
 
 

@@ -10,6 +10,10 @@
   and the plan's minimum flowing pressure, with n = ``plan.deliverability_exponent``.
 * Planned wells add their C and n from their start date.
 
+With the plan's pseudo-pressure form (``pseudo_pressure``, the field's m(p) table) tests are
+fitted and wells calibrated with m(p̄) − m(p_wf) in place of p̄² − p_wf²; planned wells'
+C and n are given in the p² form and stay in it.
+
 Rates Mscf/d of separator gas, pressures psia, times days since 1970-01-01.
 """
 
@@ -50,7 +54,12 @@ def recent_survey_pressure(prepared: PreparedData, well: str | None) -> float | 
 
 
 def field_wells(
-    inputs: FieldInputs, prepared: PreparedData, plan: FieldPlan, pwf_psia: float, model_p_psia: float
+    inputs: FieldInputs,
+    prepared: PreparedData,
+    plan: FieldPlan,
+    pwf_psia: float,
+    model_p_psia: float,
+    pseudo_pressure=None,
 ) -> tuple[tuple[tuple[Deliverability, float], ...], list[str]]:
     """((deliverability, start t_days), ...) of every well the forecast produces, and notes."""
     notes: list[str] = []
@@ -59,7 +68,9 @@ def field_wells(
     for t in inputs.well_tests:
         by_test[t.well].append(t)
     for well in sorted(by_test):
-        d, note = fit_back_pressure(by_test[well], default_n=plan.deliverability_exponent)
+        d, note = fit_back_pressure(
+            by_test[well], default_n=plan.deliverability_exponent, pseudo_pressure=pseudo_pressure
+        )
         out.append((d, -math.inf))
         if note:
             notes.append(note)
@@ -91,7 +102,9 @@ def field_wells(
                 p,
                 pwf_psia,
                 n,
-                f"calibrated from the last 12 months' rate ({rate:,.0f} Mscf/d) and {where}, n = {n:g}",
+                f"calibrated from the last 12 months' rate ({rate:,.0f} Mscf/d) and {where}, n = {n:g}"
+                + (", in m(p)" if pseudo_pressure is not None else ""),
+                pseudo_pressure,
             )
         except InputRangeError as exc:
             notes.append(f"not calibrated: {exc}")

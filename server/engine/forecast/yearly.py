@@ -2,7 +2,8 @@
 
 A month belongs to the year its first day falls in (the month ending 1 January is December).
 Yearly rates are calendar averages: the year's gas over the days of the year the forecast
-covers (the first and last years may be part years). Volumes as the profile's [Bscf, stb].
+covers (the first and last years may be part years). Volumes as the profile's [Bscf, stb]
+(condensate and water).
 """
 
 from __future__ import annotations
@@ -25,6 +26,7 @@ class YearlyProfile:
     rate_mscf_per_day: np.ndarray  # average over the year's forecast days
     cumulative_bscf: np.ndarray  # at the end of the year's last forecast month
     condensate_stb: np.ndarray | None
+    water_stb: np.ndarray | None = None
 
 
 def _year(t_days: float) -> int:
@@ -44,6 +46,9 @@ def yearly_profile(p: Profile, start_t_days: float) -> YearlyProfile:
     cond = None
     if p.condensate_stb is not None:
         cond = np.bincount(idx, weights=p.condensate_stb, minlength=uniq.size)
+    water = None
+    if p.water_stb is not None:
+        water = np.bincount(idx, weights=p.water_stb, minlength=uniq.size)
     return YearlyProfile(
         case=p.case,
         year=uniq,
@@ -51,6 +56,7 @@ def yearly_profile(p: Profile, start_t_days: float) -> YearlyProfile:
         rate_mscf_per_day=np.divide(gas * 1e6, days, out=np.zeros_like(gas), where=days > 0),
         cumulative_bscf=np.asarray(p.cumulative_bscf, float)[last] if uniq.size else np.zeros(0),
         condensate_stb=cond,
+        water_stb=water,
     )
 
 

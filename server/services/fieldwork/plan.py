@@ -16,10 +16,12 @@ from .. import audit
 from ..jobs import queue as jobs
 from .choices import ChangeOutcome, FieldWorkError, _queue
 from .planrules import (  # noqa: F401  (re-exported: the plan's rules live beside, database-free)
+    CHOICE_KEYS,
     DATE_KEYS,
     DEFAULT_PLAN,
     EXPONENT_MAX,
     EXPONENT_MIN,
+    FORM_WORDS,
     MAX_RATE_MSCF_PER_DAY,
     OPTIONAL_KEYS,
     PLAN_COLUMNS,

@@ -12,6 +12,7 @@ import datetime as dt
 import math
 
 from ...engine import plan as engine_plan
+from ...engine.forecast.deliverability import FORMS
 from ..timebase import days_from_date
 
 #: Stored keys in the order the form and the summaries show them.
@@ -24,6 +25,7 @@ PLAN_KEYS = (
     "economic_limit_mscf_per_day",
     "licence_end_date",
     "deliverability_exponent",
+    "deliverability_form",
 )
 DATE_KEYS = ("compression_start_date", "licence_end_date")
 OPTIONAL_KEYS = (
@@ -33,6 +35,13 @@ OPTIONAL_KEYS = (
     "compression_min_flowing_bhp_psia",
     "licence_end_date",
 )
+#: Keys whose value is one of a few words, and those words.
+CHOICE_KEYS = {"deliverability_form": FORMS}
+#: The back-pressure equation's forms in words (pages, summaries).
+FORM_WORDS = {
+    "pressure_squared": "pressure squared, q = C (p̄² − p_wf²)^n",
+    "pseudo_pressure": "pseudo-pressure, q = C [m(p̄) − m(p_wf)]^n",
+}
 _ENGINE_DEFAULT = engine_plan.FieldPlan()
 DEFAULT_PLAN = {
     "plateau_rate_mscf_per_day": None,
@@ -43,6 +52,7 @@ DEFAULT_PLAN = {
     "economic_limit_mscf_per_day": _ENGINE_DEFAULT.economic_limit_mscf_per_day,
     "licence_end_date": None,
     "deliverability_exponent": _ENGINE_DEFAULT.deliverability_exponent,
+    "deliverability_form": _ENGINE_DEFAULT.deliverability_form,
 }
 #: What each key is called in words (messages, audit summaries).
 WORDS = {
@@ -54,6 +64,7 @@ WORDS = {
     "economic_limit_mscf_per_day": "economic limit",
     "licence_end_date": "licence end",
     "deliverability_exponent": "deliverability exponent n",
+    "deliverability_form": "deliverability form",
 }
 EXPONENT_MIN, EXPONENT_MAX = 0.5, 1.0  # back-pressure n (Rawlins & Schellhardt 1936)
 MAX_RATE_MSCF_PER_DAY = 1e9
@@ -69,6 +80,7 @@ PLAN_COLUMNS = (
     ("economic_limit_mscf_per_day", "economic_limit_rate"),
     ("licence_end_date", "licence_end"),
     ("deliverability_exponent", "deliverability_exponent"),
+    ("deliverability_form", "deliverability_form"),
 )
 
 
@@ -104,6 +116,9 @@ def plan_problems(field, values: dict) -> dict[str, str]:
     n = values["deliverability_exponent"]
     if n is None or not EXPONENT_MIN <= n <= EXPONENT_MAX:
         p["deliverability_exponent"] = f"must lie between {EXPONENT_MIN} and {EXPONENT_MAX}"
+    form = values.get("deliverability_form")
+    if form not in FORMS:
+        p["deliverability_form"] = f"must be one of {', '.join(FORMS)}"
     end = values["licence_end_date"]
     if end is not None and c_date is not None and c_date >= end:
         p["compression_start_date"] = f"must be before the licence end ({end.isoformat()})"
@@ -142,6 +157,13 @@ def parse_plan(given: dict) -> tuple[dict, dict[str, str]]:
         if key not in PLAN_KEYS:
             problems[key] = "not part of a field plan"
             continue
+        if key in CHOICE_KEYS:
+            value = str(raw or "").strip().lower().replace("-", "_").replace(" ", "_")
+            if value not in CHOICE_KEYS[key]:
+                problems[key] = f"{WORDS[key]} must be one of {', '.join(CHOICE_KEYS[key])}"
+                continue
+            parsed[key] = value
+            continue
         try:
             value = _date(raw, WORDS[key]) if key in DATE_KEYS else _number(raw, WORDS[key])
         except ValueError as exc:
@@ -160,6 +182,8 @@ def show(key: str, value) -> str:
         return "none"
     if key in DATE_KEYS:
         return value.isoformat() if isinstance(value, dt.date) else str(value)
+    if key in CHOICE_KEYS:
+        return FORM_WORDS.get(value, str(value))
     if key.endswith("_mscf_per_day"):
         return f"{value:,.0f} Mscf/d"
     if key.endswith("_psia"):
@@ -190,4 +214,5 @@ def engine_field_plan(row, wells: list) -> engine_plan.FieldPlan | None:
             for w in sorted(wells, key=lambda w: (w.start_date, w.name))
         ),
         deliverability_exponent=row.deliverability_exponent,
+        deliverability_form=getattr(row, "deliverability_form", None) or _ENGINE_DEFAULT.deliverability_form,
     )

@@ -621,6 +621,17 @@ def _forecast_kinds() -> tuple[FileKind, ...]:
                 help="n used when C is calibrated from monthly rates (0.5 to 1; 0.85 common practice)",
                 examples=(0.85, 0.85),
             ),
+            Column(
+                "deliverability_form",
+                "choice",
+                required=False,
+                default="pressure_squared",
+                choices=("pressure_squared", "pseudo_pressure"),
+                choice_aliases={"p2": "pressure_squared", "m(p)": "pseudo_pressure", "m": "pseudo_pressure"},
+                help="the back-pressure equation's form: pressure_squared, q = C (p² − pwf²)^n, or "
+                "pseudo_pressure, q = C [m(p) − m(pwf)]^n (Al-Hussainy, Ramey & Crawford 1966)",
+                examples=("pressure_squared", "pressure_squared"),
+            ),
         ),
         key=("field",),
         help="one row per field: how it will be produced; replaces the field's plan with 'replace existing'",

@@ -234,7 +234,10 @@ def get_forecast(
     return {
         "estimate_id": est.id if est is not None else None,
         "basis_model": (fc or {}).get("basis_model"),
+        # Forecasts stored before the form was a choice were all in the p² form.
+        "deliverability_form": ((fc.get("deliverability_form") or "pressure_squared") if fc else None),
         "deliverability": (fc or {}).get("deliverability") or [],
+        "water": (fc or {}).get("water"),
         "profiles": profiles,
         "notes": (fc or {}).get("notes") or [],
         "remaining_from": remaining_from,

@@ -156,7 +156,9 @@ def deliverability_figure(
                 }
             )
         fit = next((d for d in deliverability if d.get("well") == well), None)
-        if fit and fit.get("c_mscf_per_day_psi2n") and fit.get("n"):
+        # A fit in the pseudo-pressure form is a line on ln q against ln Δm, not Δp²: not drawn here.
+        in_p2 = (fit or {}).get("form", "pressure_squared") == "pressure_squared"
+        if fit and in_p2 and fit.get("c_mscf_per_day_psi2n") and fit.get("n"):
             lo = min(dp2) / 3 if dp2 else 1e5
             hi = max(dp2) * 3 if dp2 else 2.5e7
             x = np.geomspace(max(lo, 1.0), max(hi, lo * 10), 30)

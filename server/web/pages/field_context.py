@@ -174,6 +174,7 @@ def forecast_context(session: Session, field: Field, detail: dict, series, du: D
         "deliverability_figure": deliverability_figure(fits, tests, du) if (fits or tests) else None,
         "well_tests": tests,
         "plan": field_plan.stored_plan(row),
+        "plan_form_words": field_plan.FORM_WORDS,
         "plan_exists": row is not None,
         "planned_wells": field_plan.planned_well_rows(session, field.id),
         "stop_words": stop_words,

@@ -190,6 +190,7 @@ PLAN_FORM = (
     ("economic_limit_rate", "economic_limit_mscf_per_day", "rate_mscf_per_day"),
     ("licence_end", "licence_end_date", "date"),
     ("deliverability_exponent", "deliverability_exponent", None),
+    ("deliverability_form", "deliverability_form", "choice"),
 )
 PLAN_SHOWN_AS = ".6g"  # as templates/_field_forecast.html shows the plan's numbers
 
@@ -201,6 +202,10 @@ def plan_from_form(du: DisplayUnits, current: dict, form: dict) -> tuple[dict, d
     for name, key, kind in PLAN_FORM:
         text = (form.get(name) or "").strip()
         stored = current[key]
+        if kind == "choice":  # a select: blank (an older form) or the stored value keeps it
+            if text and text != stored:
+                values[key] = text
+            continue
         if kind == "date" or not text:
             values[key] = text
             continue
@@ -233,6 +238,7 @@ def change_plan(
     economic_limit_rate: Annotated[str, Form(max_length=40)] = "",
     licence_end: Annotated[str, Form(max_length=40)] = "",
     deliverability_exponent: Annotated[str, Form(max_length=40)] = "",
+    deliverability_form: Annotated[str, Form(max_length=40)] = "",
 ):
     field = field_or_404(session, field_id)
     du = units_for_request(request)
@@ -245,6 +251,7 @@ def change_plan(
         "economic_limit_rate": economic_limit_rate,
         "licence_end": licence_end,
         "deliverability_exponent": deliverability_exponent,
+        "deliverability_form": deliverability_form,
     }
     current = field_plan.stored_plan(field_plan.plan_row(session, field_id))
     values, problems = plan_from_form(du, current, form)

@@ -4,6 +4,7 @@ Stored units in every name (Mscf/d of separator gas, psia, Bscf); dates ISO."""
 from __future__ import annotations
 
 import datetime as dt
+from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field
 
@@ -30,6 +31,10 @@ class PlanRead(Schema):
     economic_limit_mscf_per_day: float
     licence_end_date: dt.date | None
     deliverability_exponent: float
+    deliverability_form: str = Field(
+        "pressure_squared",
+        description="pressure_squared: q = C (p̄² − p_wf²)^n; pseudo_pressure: q = C [m(p̄) − m(p_wf)]^n",
+    )
     planned_wells: list[PlannedWellRead]
 
 
@@ -46,6 +51,7 @@ class PlanUpdate(BaseModel):
     economic_limit_mscf_per_day: float | None = Field(None, ge=0)
     licence_end_date: dt.date | None = None
     deliverability_exponent: float | None = Field(None, ge=0.5, le=1)
+    deliverability_form: Literal["pressure_squared", "pseudo_pressure"] | None = None
 
 
 class YearRead(Schema):
@@ -53,6 +59,7 @@ class YearRead(Schema):
     gas_bscf: float
     average_rate_mscf_per_day: float
     condensate_stb: float | None
+    water_stb: float | None = Field(None, description="null: no water forecast (see water.method)")
     cumulative_bscf: float | None
 
 
@@ -65,6 +72,7 @@ class ProfileRead(Schema):
     cumulative_bscf: list[float | None]
     pressure_psia: list[float | None]
     condensate_stb: list[float | None] | None
+    water_stb: list[float | None] | None = None
     end_date: dt.date | None
     stop_reason: str
     stop_words: str
@@ -83,6 +91,21 @@ class DeliverabilityRead(Schema):
     source: str
     n_points: int
     rms_log_rate: float | None
+    form: str = Field(
+        "pressure_squared", description="C is in Mscf/d/psi^(2n) (pressure_squared) or Mscf/d/(psi²/cP)^n"
+    )
+
+
+class WaterRead(Schema):
+    """How produced water follows the gas: trend (WGR linear in cumulative gas, significant
+    slope), constant (the last 12 months' WGR) or none."""
+
+    method: str
+    wgr_stb_per_mmscf: float | None
+    slope_stb_per_mmscf_per_bscf: float | None
+    p_value: float | None
+    n_points: int
+    sentence: str
 
 
 class ForecastRead(Schema):
@@ -90,7 +113,9 @@ class ForecastRead(Schema):
 
     estimate_id: int | None
     basis_model: str | None
+    deliverability_form: str | None = Field(None, description="the form the forecast used (null: none)")
     deliverability: list[DeliverabilityRead]
+    water: WaterRead | None = None
     profiles: list[ProfileRead]
     notes: list[str]
     remaining_from: dt.date | None

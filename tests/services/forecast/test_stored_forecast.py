@@ -78,3 +78,12 @@ def test_the_pz_path_divides_each_pressure_by_its_z():
     best = data["profiles"][1]
     assert best["pz_psia"][0] == pytest.approx(best["pressure_psia"][0] / 0.9)
     assert stored_forecast(make_forecast())[0]["profiles"][1]["pz_psia"] is None  # no z: no path
+
+
+def test_yearly_rows_carry_water_when_the_profile_has_it():
+    p = to_jsonable(constant_rate_profile("best", months=24, rate_mscf_per_day=10000.0))
+    assert [r["water_stb"] for r in yearly_rows(p)] == [None, None]  # no water forecast
+    p["water_stb"] = [4.0 * g * 1e3 for g in p["gas_bscf"]]  # 4 stb/MMscf
+    rows = yearly_rows(p)
+    assert rows[0]["water_stb"] == pytest.approx(4.0 * 10000.0 * 365 / 1e3)  # 2027: 365 days
+    assert rows[1]["water_stb"] == pytest.approx(4.0 * 10000.0 * 366 / 1e3)  # 2028: leap year

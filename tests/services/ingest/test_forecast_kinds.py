@@ -137,6 +137,26 @@ def test_an_impossible_plan_names_row_and_column(session, field, row, column, wo
     assert count(session, FieldPlan) == 0
 
 
+def test_the_deliverability_form_column(db, session, field):
+    from server.engine.forecast.deliverability import FORMS
+    from server.services.ingest.kinds import KINDS
+
+    col = KINDS["field_plans"].column("deliverability_form")
+    assert col.choices == FORMS and col.default == "pressure_squared"  # the engine's forms, its default
+    bad = check(
+        session, "field_plans", "field,plateau_rate_mscf_per_day,deliverability_form\nUpland,60000,cubic\n"
+    )
+    assert errors(bad) and errors(bad)[0][:2] == (2, "deliverability_form")
+    text = "field,plateau_rate_mscf_per_day,deliverability_form\nUpland,60000,Pseudo-Pressure\n"
+    assert store(db, "field_plans", text).status == "committed"
+    assert session.execute(select(FieldPlan.deliverability_form)).scalar_one() == "pseudo_pressure"
+    # A file without the column keeps the stored form.
+    again = "field,plateau_rate_mscf_per_day\nUpland,50000\n"
+    assert store(db, "field_plans", again, replace=True, actor=Actor(None, "tester")).status == "committed"
+    session.expire_all()
+    assert session.execute(select(FieldPlan.deliverability_form)).scalar_one() == "pseudo_pressure"
+
+
 def test_changing_a_plan_needs_replace_and_is_audited(db, session, field):
     store(db, "field_plans", "field,plateau_rate_mscf_per_day\nUpland,60000\n")
     again = "field,plateau_rate_mscf_per_day\nUpland,50000\n"
