@@ -21,8 +21,8 @@ summary of the recent months, not a model of water breakthrough or coning.
 from __future__ import annotations
 
 import numpy as np
-from scipy import stats
 
+from ..stats import t_sf
 from .types import WaterRule
 from .wells import recent_volume_per_day
 
@@ -45,7 +45,7 @@ def _slope_test(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float | Non
     se = (s2 / sxx) ** 0.5
     if se == 0.0:
         return a, b, 0.0 if b != 0.0 else 1.0
-    return a, b, float(2.0 * stats.t.sf(abs(b / se), n - 2))
+    return a, b, float(2.0 * t_sf(abs(b / se), n - 2))
 
 
 def water_rule(ends_t_days, gas_mscf, water_stb) -> WaterRule:
