@@ -26,6 +26,7 @@ from .web.api import field_data as api_data
 from .web.api import fields as api_fields
 from .web.api import reserves as api_reserves
 from .web.api import reserves_movements as api_reserves_movements
+from .web.api import reserves_settings as api_reserves_settings
 from .web.api import settings as api_settings
 from .web.api import uploads as api_uploads
 from .web.assets import AssetStore, asset_response
@@ -172,6 +173,7 @@ def create_app(settings: Settings | None = None, database: Database | None = Non
     app.include_router(reserves_pages.router)
     app.include_router(reserves_field_pages.router)
     app.include_router(api_reserves_movements.router)
+    app.include_router(api_reserves_settings.router)
     app.include_router(reserves_movements_pages.router)
     document_auth_errors(app)
     return app

@@ -74,6 +74,9 @@ def test_review_cycle_in_the_browser(page, browser, live_server, console_errors,
     with page.expect_navigation():
         page.get_by_role("button", name="Save the booking").click()
     assert page.locator("#booked-2P").inner_text() == "2.500"
+    # sales gas beside it: 2.5 Bscf separator gas times the team's default factor 0.95
+    assert page.locator("#sales-2P").inner_text() == "2.375"
+    assert "95 % of the separator gas" in page.locator("#sales-gas-factor").inner_text()
     assert page.locator("#field-blocks").count() == 0
 
     # 4. assign the 2P change: 0.5 to extensions and discoveries, revisions take the remainder

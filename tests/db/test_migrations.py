@@ -292,3 +292,52 @@ def test_forecast_tables_refuse_impossible_values(fresh_database_url):
     with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:  # one plan per field
         c.execute(sa.text(plan.format(**good_plan)))
     eng.dispose()
+
+
+def test_0012s_sales_gas_factor_is_not_stated_for_older_snapshots_and_goes_back(fresh_database_url):
+    """A snapshot frozen before 0012s keeps no factor (NULL, source ''): its sales gas is "not
+    stated", never a guess; the factor must be a fraction in (0, 1]; downgrade drops both columns
+    and keeps the row."""
+    import pytest
+
+    from server.db.session import make_engine
+
+    upgrade(fresh_database_url, "0010f")
+    eng = make_engine(fresh_database_url)
+    review = (
+        "INSERT INTO reserves_review (id, name, effective_date, status, revision, reopen_reason, "
+        "created_by_name, created_at, submitted_by_name, approved_by_name, approval_comment) "
+        "VALUES (1, 'R', '2024-12-31', 'approved', 1, '', '', CURRENT_TIMESTAMP, '', '', '')"
+    )
+    snap = (
+        "INSERT INTO reserves_review_field (id, review_id, field_id, field_name, asset_id, asset_name, "
+        "estimate_status, inputs_fingerprint, engine_version, basis_model, basis_title, basis_source, "
+        "volume_source, produced_gas_bscf, produced_condensate_stb, flags, has_alert, snapshot_at{extra}) "
+        "VALUES ({id}, 1, {id}, 'F{id}', 1, 'A', 'ok', '', '', '', '', '', 'basis', 0, 0, '[]', false, "
+        "CURRENT_TIMESTAMP{more})"
+    )
+    with eng.begin() as c:
+        c.execute(sa.text(review))
+        c.execute(sa.text(snap.format(id=1, extra="", more="")))
+    eng.dispose()
+    upgrade(fresh_database_url)
+    eng = make_engine(fresh_database_url)
+    with eng.begin() as c:
+        row = c.execute(
+            sa.text("SELECT sales_gas_frac, sales_gas_frac_source FROM reserves_review_field")
+        ).one()
+        assert tuple(row) == (None, "")
+        c.execute(sa.text(snap.format(id=2, extra=", sales_gas_frac", more=", 0.95")))
+    for bad in ("0", "1.01", "-0.5"):
+        with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
+            c.execute(sa.text(snap.format(id=3, extra=", sales_gas_frac", more=f", {bad}")))
+    eng.dispose()
+    downgrade(fresh_database_url, "0010f")
+    eng = sa.create_engine(fresh_database_url)
+    try:
+        cols = {c["name"] for c in sa.inspect(eng).get_columns("reserves_review_field")}
+        with eng.begin() as c:
+            assert c.execute(sa.text("SELECT count(*) FROM reserves_review_field")).scalar_one() == 2
+    finally:
+        eng.dispose()
+    assert not {"sales_gas_frac", "sales_gas_frac_source"} & cols

@@ -80,6 +80,10 @@ class ReviewField(Base):
     __table_args__ = (
         UniqueConstraint("review_id", "field_id", name="review_field"),
         CheckConstraint(_in("volume_source", ("forecast", "basis", "none")), name="volume_source_known"),
+        CheckConstraint(
+            "sales_gas_frac IS NULL OR (sales_gas_frac > 0 AND sales_gas_frac <= 1)",
+            name="sales_gas_frac_range",
+        ),
     )
     id: Mapped[int] = mapped_column(primary_key=True)
     review_id: Mapped[int] = mapped_column(ForeignKey("reserves_review.id", ondelete="CASCADE"), index=True)
@@ -108,6 +112,12 @@ class ReviewField(Base):
     production_last_month: Mapped[dt.date | None] = mapped_column(Date)
     flags: Mapped[list] = mapped_column(JSON, default=list)
     has_alert: Mapped[bool] = mapped_column(Boolean, default=False)
+    # Share of separator gas delivered for sale (after fuel, flare, shrinkage), frozen from the
+    # team setting; None in reviews frozen before it existed (their sales gas is not stated).
+    sales_gas_frac: Mapped[float | None] = mapped_column(Float)
+    sales_gas_frac_source: Mapped[str] = mapped_column(
+        String(10), default="", server_default=""
+    )  # team, field
     snapshot_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
 
 

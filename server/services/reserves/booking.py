@@ -70,6 +70,14 @@ def booked_condensate_stb(booking: Booking) -> tuple[float | None, ...]:
     return tuple(None if g is None else g * MMSCF_PER_BSCF * cgr for g in booked(booking))
 
 
+def booked_sales_gas_bscf(booking: Booking, sales_gas_frac: float | None) -> tuple[float | None, ...]:
+    """Sales gas with each booked separator-gas case [Bscf]: the booked gas times the share
+    delivered for sale (the frozen factor); None where either is unknown."""
+    if sales_gas_frac is None:
+        return (None, None, None)
+    return tuple(None if g is None else g * sales_gas_frac for g in booked(booking))
+
+
 def reserves_2p(booking: Booking | None) -> float:
     """The booking's 2P reserves [Bscf] (zero for contingent resources or no volume)."""
     if booking is None or booking.resource_class != "reserves":

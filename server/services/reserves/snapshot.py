@@ -17,6 +17,8 @@ from sqlalchemy.orm import Session
 
 from ...db.base import utcnow
 from ...db.models import Asset, Estimate, Field, ProductionMonth, ReviewField, Well
+from . import sales_gas
+from .rules import ReservesError
 
 MSCF_PER_BSCF = 1.0e6
 
@@ -135,6 +137,67 @@ def copy_estimate(snap: ReviewField, estimate: Estimate | None) -> None:
     snap.snapshot_at = utcnow()
 
 
+def _ids(values, what: str) -> list[int]:
+    try:
+        return sorted({int(i) for i in values})
+    except (TypeError, ValueError):
+        raise ReservesError(f"{what}: a list of {what.removesuffix('_ids')} ids is expected") from None
+
+
+def check_scope(
+    session: Session, field_ids=None, asset_ids=None, permitted_asset_ids=None
+) -> list[int] | None:
+    """The field ids of a review's scope: those of ``field_ids`` and every field of ``asset_ids``;
+    None (both None) is the whole portfolio. Refused with a ReservesError naming the key
+    (``field_ids``, ``asset_ids``): an id that is not a number, an unknown field or asset, an
+    asset without fields, an empty scope, or a field outside ``permitted_asset_ids`` (None:
+    every asset is permitted)."""
+    if field_ids is None and asset_ids is None:
+        if permitted_asset_ids is not None:
+            raise ReservesError(
+                "scope: a review of the whole portfolio needs access to every asset; choose your fields"
+            )
+        return None
+    fields = _ids(field_ids or [], "field_ids")
+    assets = _ids(asset_ids or [], "asset_ids")
+    if not fields and not assets:
+        raise ReservesError(
+            "field_ids: give at least one field or asset (or none at all for the whole portfolio)"
+        )
+    known_assets = set(session.execute(select(Asset.id).where(Asset.id.in_(assets))).scalars())
+    if set(assets) - known_assets:
+        raise ReservesError(f"asset_ids: no asset {', '.join(map(str, sorted(set(assets) - known_assets)))}")
+    of_field = dict(session.execute(select(Field.id, Field.asset_id).where(Field.id.in_(fields))).all())
+    if set(fields) - set(of_field):
+        raise ReservesError(f"field_ids: no field {', '.join(map(str, sorted(set(fields) - set(of_field))))}")
+    by_asset = session.execute(select(Field.id, Field.asset_id).where(Field.asset_id.in_(assets))).all()
+    empty = sorted(known_assets - {a for _, a in by_asset})
+    if empty:
+        raise ReservesError(f"asset_ids: asset {', '.join(map(str, empty))} has no fields to book")
+    if permitted_asset_ids is not None:
+        allowed = set(permitted_asset_ids)
+        outside_assets = sorted(set(assets) - allowed)
+        if outside_assets:
+            raise ReservesError(
+                f"asset_ids: asset {', '.join(map(str, outside_assets))} is not among the assets you may book"
+            )
+        outside = sorted(f for f, a in of_field.items() if a not in allowed)
+        if outside:
+            raise ReservesError(
+                f"field_ids: field {', '.join(map(str, outside))} is outside the assets you may book"
+            )
+    return sorted(set(fields) | {f for f, _ in by_asset})
+
+
+def scope_choices(session: Session, permitted_asset_ids=None) -> list[tuple[int, str, list[tuple[int, str]]]]:
+    """(asset id, asset name, [(field id, field name)]) the user may put in a review's scope."""
+    out: dict[int, tuple[int, str, list]] = {}
+    for f, a in scope_fields(session):
+        if permitted_asset_ids is None or a.id in permitted_asset_ids:
+            out.setdefault(a.id, (a.id, a.name, []))[2].append((f.id, f.name))
+    return sorted(out.values(), key=lambda t: t[1])
+
+
 def scope_fields(session: Session, field_ids=None) -> list[tuple[Field, Asset]]:
     """The review's scope with each field's asset: every field of the portfolio, or those of
     ``field_ids`` (e.g. leaving out a field not yet discovered or not yet held at the date)."""
@@ -152,12 +215,14 @@ def take_snapshots(
     ids = [f.id for f, _ in pairs]
     estimates = newest_estimates(session, ids)
     produced = produced_between(session, None, effective_date, ids)
+    factors = sales_gas.sales_gas_settings(session)
     out = []
     for f, a in pairs:
         snap = ReviewField(
             review_id=review_id, field_id=f.id, field_name=f.name, asset_id=a.id, asset_name=a.name
         )
         copy_estimate(snap, estimates.get(f.id))
+        sales_gas.freeze(session, snap, factors)
         gas, cond, last = produced.get(f.id, (0.0, 0.0, None))
         snap.produced_gas_bscf, snap.produced_condensate_stb, snap.production_last_month = gas, cond, last
         session.add(snap)

@@ -16,7 +16,7 @@ from sqlalchemy.orm import Session
 from ...db.models import ReservesReview, ReviewField
 from . import reconcile
 from .aggregate import ProbabilisticTotal, probabilistic_totals
-from .booking import booked, booked_condensate_stb, reasons_against_last, reserves_2p
+from .booking import booked, booked_condensate_stb, booked_sales_gas_bscf, reasons_against_last, reserves_2p
 from .categories import category_names
 from .rules import reserves_settings
 from .workflow import newer_estimates, submission_blockers
@@ -121,6 +121,13 @@ class FieldBooking:
     change_2p_bscf: float | None
     newer_estimate_id: int | None
     updated_by_name: str
+    # The frozen share of separator gas sold (None: a review frozen before the factor existed),
+    # "team" or "field", and the booked sales gas of each case [Bscf].
+    sales_gas_frac: float | None = None
+    sales_gas_frac_source: str = ""
+    booked_sales_low_bscf: float | None = None
+    booked_sales_best_bscf: float | None = None
+    booked_sales_high_bscf: float | None = None
 
 
 @dataclass(frozen=True)
@@ -132,6 +139,7 @@ class CategoryTotal:
     gas_bscf: float
     condensate_stb: float
     fields: int
+    sales_gas_bscf: float | None = None  # None when some field of the group states no sales gas
 
 
 @dataclass(frozen=True)
@@ -161,6 +169,7 @@ def field_bookings(session: Session, review: ReservesReview, asset_ids=None) -> 
         last_2p = reserves_2p(last[snap.field_id][1]) if snap.field_id in last else None
         low, best, high = booked(b)
         c_low, c_best, c_high = booked_condensate_stb(b)
+        sales = booked_sales_gas_bscf(b, snap.sales_gas_frac)
         out.append(
             FieldBooking(
                 snap.field_id,
@@ -211,6 +220,9 @@ def field_bookings(session: Session, review: ReservesReview, asset_ids=None) -> 
                 None if last_2p is None else reserves_2p(b) - last_2p,
                 newer.get(snap.field_id),
                 b.updated_by_name,
+                snap.sales_gas_frac,
+                snap.sales_gas_frac_source,
+                *sales,
             )
         )
     return out
@@ -218,16 +230,19 @@ def field_bookings(session: Session, review: ReservesReview, asset_ids=None) -> 
 
 def category_totals(rows: list[FieldBooking]) -> list[CategoryTotal]:
     """Per asset and portfolio, per category: sums of the booked volumes (arithmetic)."""
-    acc: dict[tuple[str, str], list] = defaultdict(lambda: [0.0, 0.0, 0])
+    acc: dict[tuple[str, str], list] = defaultdict(lambda: [0.0, 0.0, 0, 0.0])
     for r in rows:
         gas = (r.booked_low_bscf, r.booked_best_bscf, r.booked_high_bscf)
         cond = (r.booked_condensate_low_stb, r.booked_condensate_best_stb, r.booked_condensate_high_stb)
-        for cat, g, c in zip(r.categories, gas, cond, strict=True):
+        sales = (r.booked_sales_low_bscf, r.booked_sales_best_bscf, r.booked_sales_high_bscf)
+        for cat, g, c, sg in zip(r.categories, gas, cond, sales, strict=True):
             for group in ("asset " + r.asset_name, "portfolio"):
                 a = acc[(group, cat)]
                 a[0] += g or 0.0
                 a[1] += c or 0.0
                 a[2] += 1
+                # a field with gas but no stated factor leaves the group's sales gas unknown
+                a[3] = None if a[3] is None or (sg is None and g is not None) else a[3] + (sg or 0.0)
     keys = sorted(acc, key=lambda k: (k[0] == "portfolio", k[0], k[1]))
     return [CategoryTotal(g, c, *acc[(g, c)]) for g, c in keys]
 

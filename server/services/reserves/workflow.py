@@ -9,12 +9,12 @@ from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
 from ...db.base import utcnow
-from ...db.models import AuditEvent, Booking, Field, ReconciliationLine, ReservesReview, ReviewField
+from ...db.models import AuditEvent, Booking, ReconciliationLine, ReservesReview, ReviewField
 from .. import audit
-from . import reconcile
+from . import reconcile, sales_gas
 from .booking import blockers, fill_computed, new_booking, reasons_against_last
 from .rules import FourEyesError, ReservesError, ReviewNotFoundError, require_draft, reserves_settings
-from .snapshot import copy_estimate, newest_estimates, refresh_production, take_snapshots
+from .snapshot import check_scope, copy_estimate, newest_estimates, refresh_production, take_snapshots
 
 SNAPSHOT_COPY = [c.key for c in ReviewField.__table__.columns if c.key not in ("id", "review_id")]
 BOOKING_COPY = [c.key for c in Booking.__table__.columns if c.key not in ("id", "review_field_id")]
@@ -39,31 +39,25 @@ def _text(value: str, what: str, *, required: bool, limit: int = 4000) -> str:
     return value
 
 
-def _check_scope(session: Session, field_ids) -> list[int] | None:
-    if field_ids is None:
-        return None
-    try:
-        wanted = sorted({int(i) for i in field_ids})
-    except (TypeError, ValueError):
-        raise ReservesError("field_ids: a list of field ids is expected") from None
-    if not wanted:
-        raise ReservesError("field_ids: give at least one field (or none at all for the whole portfolio)")
-    known = set(session.execute(select(Field.id).where(Field.id.in_(wanted))).scalars())
-    if set(wanted) - known:
-        raise ReservesError(f"field_ids: no field {', '.join(map(str, sorted(set(wanted) - known)))}")
-    return wanted
-
-
 def create_review(
-    session: Session, actor: audit.Actor, name: str, effective_date: dt.date, *, field_ids=None
+    session: Session,
+    actor: audit.Actor,
+    name: str,
+    effective_date: dt.date,
+    *,
+    field_ids=None,
+    asset_ids=None,
+    permitted_asset_ids=None,
 ) -> ReservesReview:
     """A draft review as at ``effective_date`` with a snapshot and a booking for every field in
-    scope: the whole portfolio, or only ``field_ids`` (a field not yet discovered or held at the
-    date stays out, and enters next year's reconciliation as new)."""
+    scope: the whole portfolio, or the fields of ``asset_ids`` and those of ``field_ids`` (a
+    field not yet discovered or held at the date stays out, and enters next year's
+    reconciliation as new). ``permitted_asset_ids`` (None: every asset) are the assets the user
+    may book; a scope reaching outside them is refused (:func:`snapshot.check_scope`)."""
     name = _text(name, "name", required=True, limit=120)
     if not isinstance(effective_date, dt.date):
         raise ReservesError("effective_date: a date (YYYY-MM-DD) is required")
-    scope = _check_scope(session, field_ids)
+    scope = check_scope(session, field_ids, asset_ids, permitted_asset_ids)
     if session.execute(select(ReservesReview.id).where(ReservesReview.name == name)).first():
         raise ReservesError(f"name: a review called {name!r} exists already; choose another name")
     review = ReservesReview(
@@ -118,20 +112,14 @@ def refresh_field(session: Session, actor: audit.Actor, review: ReservesReview, 
     ).scalar_one_or_none()
     if snap is None:
         raise ReservesError(f"field {field_id} is not in review {review.name!r}")
-    before = {
-        "estimate_id": snap.estimate_id,
-        "eur_best_bscf": snap.eur_best_bscf,
-        "produced_gas_bscf": snap.produced_gas_bscf,
-    }
+    kept = ("estimate_id", "eur_best_bscf", "produced_gas_bscf", "sales_gas_frac")
+    before = {k: getattr(snap, k) for k in kept}
     copy_estimate(snap, newest_estimates(session, [field_id]).get(field_id))
     refresh_production(session, snap, review.effective_date)
+    sales_gas.freeze(session, snap)
     booking = session.execute(select(Booking).where(Booking.review_field_id == snap.id)).scalar_one()
     fill_computed(booking, snap)
-    after = {
-        "estimate_id": snap.estimate_id,
-        "eur_best_bscf": snap.eur_best_bscf,
-        "produced_gas_bscf": snap.produced_gas_bscf,
-    }
+    after = {k: getattr(snap, k) for k in kept}
     session.flush()
     reconcile.rebuild(session, review)
     audit.record(

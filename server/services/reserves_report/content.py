@@ -37,9 +37,11 @@ CAUTIONS = (
     "Categories follow SPE-PRMS (2018): 1P = proved, 2P = proved + probable, 3P = proved + probable "
     "+ possible (1C/2C/3C for contingent resources). The estimate's low/best/high cases map onto "
     "them; totals are arithmetic sums of the fields, not probabilistic aggregates.",
-    "Gas volumes are the stored separator-gas basis in Bscf: fuel, flare and shrinkage to sales are "
-    "not deducted. Condensate (stb) is the booked gas times the condensate-gas ratio produced to "
-    "the effective date.",
+    "Gas volumes are the stored separator-gas basis in Bscf unless marked as sales gas. Sales gas is "
+    "the booked separator gas times the share delivered for sale after fuel, flare and shrinkage "
+    "(the team's factor, or the field's own, frozen with the review). The reconciliation is in "
+    "separator gas. Condensate (stb) is the booked separator gas times the condensate-gas ratio "
+    "produced to the effective date.",
     "Material-balance ranges hold the parts of the uncertainty that the basis names (data scatter, "
     "model spread, metering, gauge and z-factor errors), not every uncertainty.",
 )
@@ -47,11 +49,12 @@ CAUTIONS = (
 
 @dataclass(frozen=True)
 class GroupSummary:
-    """One group's booked volumes by category: gas [Bscf] and condensate [stb]."""
+    """One group's booked volumes by category: separator gas and sales gas [Bscf], condensate [stb]."""
 
     group: str
     gas_bscf: dict[str, float]
     condensate_stb: dict[str, float]
+    sales_gas_bscf: dict[str, float | None] = field(default_factory=dict)  # None: not stated
 
 
 @dataclass(frozen=True)
@@ -94,11 +97,15 @@ def summaries(detail: ReviewDetail) -> list[GroupSummary]:
         g = groups.setdefault(
             t.group,
             GroupSummary(
-                t.group, dict.fromkeys(RESERVES + CONTINGENT, 0.0), dict.fromkeys(RESERVES + CONTINGENT, 0.0)
+                t.group,
+                dict.fromkeys(RESERVES + CONTINGENT, 0.0),
+                dict.fromkeys(RESERVES + CONTINGENT, 0.0),
+                dict.fromkeys(RESERVES + CONTINGENT, 0.0),
             ),
         )
         g.gas_bscf[t.category] = t.gas_bscf
         g.condensate_stb[t.category] = t.condensate_stb
+        g.sales_gas_bscf[t.category] = t.sales_gas_bscf
     return list(groups.values())
 
 

@@ -5,7 +5,8 @@ totals, profiles, justifications and columns (every column of every sheet with i
 Numbers are written as numbers, dates as dates, and text always as text: text that a
 spreadsheet would take as a formula (``= + - @``) also gets a leading apostrophe
 (``ingest.files.export.safe_cell``), so no cell ever holds a formula made of user text.
-Units are the services': gas in Bscf (stored separator-gas basis), condensate in stb.
+Units are the services': gas in Bscf (stored separator-gas basis; sales gas where the column
+says so), condensate in stb.
 """
 
 from __future__ import annotations
@@ -45,6 +46,23 @@ BOOKING_COLUMNS = [
             ("computed", "computed", "remaining at the effective date as computed"),
             ("override", "override", "engineer's override (blank: none)"),
             ("booked", "booked", "booked remaining gas (override where given, else computed)"),
+        )
+        for case in ("low", "best", "high")
+    ],
+    (
+        "sales-gas factor",
+        "fraction",
+        "share of separator gas delivered for sale after fuel, flare and shrinkage, frozen with the "
+        "snapshot (blank: frozen before the factor existed)",
+        lambda f: f.sales_gas_frac,
+    ),
+    ("sales-gas factor from", "", "team default or the field's own", lambda f: f.sales_gas_frac_source),
+    *[
+        (
+            f"booked sales gas {case}",
+            B,
+            f"booked separator gas times the sales-gas factor, {case} case",
+            (lambda a: lambda f: getattr(f, a))(f"booked_sales_{case}_bscf"),
         )
         for case in ("low", "best", "high")
     ],
@@ -127,7 +145,13 @@ BOOKING_COLUMNS = [
 SUMMARY_COLUMNS = [
     ("group", "", "an asset or the portfolio", lambda t: t.group),
     ("category", "", "1P/2P/3P reserves or 1C/2C/3C contingent resources", lambda t: t.category),
-    ("gas", B, "arithmetic sum of the fields' booked gas", lambda t: t.gas_bscf),
+    ("gas", B, "arithmetic sum of the fields' booked separator gas", lambda t: t.gas_bscf),
+    (
+        "sales gas",
+        B,
+        "arithmetic sum of the fields' booked sales gas (blank: some field states none)",
+        lambda t: t.sales_gas_bscf,
+    ),
     ("condensate", S, "arithmetic sum of the fields' booked condensate", lambda t: t.condensate_stb),
     ("fields", "count", "fields in the sum", lambda t: t.fields),
 ]
@@ -270,7 +294,7 @@ def report_xlsx(report: Report) -> bytes:
         ("approved at (UTC)", rv.approved_at),
         ("approval comment", rv.approval_comment),
         ("generated at (UTC)", report.generated_at),
-        ("units", "gas in Bscf (separator-gas basis), condensate in stb"),
+        ("units", "gas in Bscf (separator-gas basis; sales gas where marked), condensate in stb"),
     ]
     for r, (k, v) in enumerate(facts):
         notes.write_string(r, 0, k, w.head)

@@ -24,7 +24,7 @@ from ...services.audit import jsonable
 from ...services.reserves import booking as bk
 from ...services.reserves import reconcile, rules, views, workflow
 from ...services.reserves_report import content
-from ..auth import Analyst, Approver, Principal, Reader, SettingsAdmin
+from ..auth import Analyst, Approver, Principal, Reader
 from ..deps import SessionDep
 from ..report_files import XLSX, report_response
 from ..schemas.common import ErrorRead, FieldId
@@ -38,10 +38,19 @@ _STRICT = ConfigDict(extra="forbid", allow_inf_nan=False)
 Bscf = Annotated[float, Field(ge=0, lt=1e6)]
 
 
+RowId = Annotated[int, Field(ge=1, le=2**31 - 1)]
+
+
 class ReviewCreate(BaseModel):
+    """Without ``asset_ids`` and ``field_ids`` the review books the whole portfolio; with either,
+    the fields of those assets and those fields (e.g. leaving out a field not yet discovered or
+    not yet held at the effective date)."""
+
     model_config = _STRICT
     name: str = Field(min_length=1, max_length=120)
     effective_date: dt.date = Field(description="as at the end of this day (YYYY-MM-DD)")
+    asset_ids: list[RowId] | None = Field(None, max_length=10_000, description="every field of these assets")
+    field_ids: list[RowId] | None = Field(None, max_length=10_000, description="and these fields")
 
 
 class BookingUpdate(BaseModel):
@@ -81,12 +90,6 @@ class Reason(BaseModel):
 class Comment(BaseModel):
     model_config = _STRICT
     comment: str = Field("", max_length=4000)
-
-
-class SettingsUpdate(BaseModel):
-    model_config = _STRICT
-    four_eyes: bool | None = None
-    justify_2p_change_frac: float | None = Field(None, gt=0, le=10)
 
 
 def _plain(value):
@@ -129,12 +132,23 @@ def list_reviews(session: SessionDep, user: Reader):
 
 
 @router.post(
-    "/reviews", status_code=201, responses=REFUSED | FORBIDDEN, summary="a draft with every field frozen"
+    "/reviews",
+    status_code=201,
+    responses=REFUSED | FORBIDDEN,
+    summary="a draft with every field in scope frozen (the whole portfolio, or chosen assets and fields)",
 )
 def create_review(body: ReviewCreate, session: SessionDep, user: Analyst):
     _whole_portfolio(user)
     try:
-        review = workflow.create_review(session, user.actor, body.name, body.effective_date)
+        review = workflow.create_review(
+            session,
+            user.actor,
+            body.name,
+            body.effective_date,
+            field_ids=body.field_ids,
+            asset_ids=body.asset_ids,
+            permitted_asset_ids=user.asset_ids,
+        )
     except rules.ReservesError as e:
         raise _refused(e) from None
     session.commit()
@@ -317,18 +331,3 @@ def approve(review_id: ReviewId, body: Comment, session: SessionDep, user: Appro
 )
 def reopen(review_id: ReviewId, body: Reason, session: SessionDep, user: Approver):
     return _act(session, review_id, user, workflow.reopen, body.reason)
-
-
-@router.get("/settings", summary="the reserves team settings")
-def get_settings(session: SessionDep, user: Reader):
-    return dataclasses.asdict(rules.reserves_settings(session))
-
-
-@router.put("/settings", responses=REFUSED, summary="change the reserves team settings (administrators)")
-def put_settings(body: SettingsUpdate, session: SessionDep, user: SettingsAdmin):
-    try:
-        out = rules.set_reserves_settings(session, user.actor, **body.model_dump())
-    except rules.ReservesError as e:
-        raise _refused(e) from None
-    session.commit()
-    return dataclasses.asdict(out)

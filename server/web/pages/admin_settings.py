@@ -15,6 +15,7 @@ from ...engine.thresholds import THRESHOLD_LIMITS, FlagThresholds
 from ...engine.units import STANDARD_CONDITIONS
 from ...services import team_settings
 from ...services.reserves import rules as reserves_rules
+from ...services.reserves import sales_gas
 from ..auth import SettingsAdmin
 from ..background import jobs_queued
 from ..deps import SessionDep, SettingsDep
@@ -105,6 +106,8 @@ def _settings_context(session, settings, **extra) -> dict:
         "submitted": {},
         "saved": None,
         "reserves": reserves_rules.reserves_settings(session),
+        "sales_gas": sales_gas.sales_gas_settings(session),
+        "sales_gas_fields": sales_gas.field_choices(session),
         "reserves_problems": {},
         "reserves_submitted": {},
         "reserves_saved": None,
@@ -120,11 +123,21 @@ def save_reserves_settings(
     user: SettingsAdmin,
     justify_2p_change_pct: Annotated[str, Form(max_length=40)] = "",
     four_eyes: Annotated[bool, Form()] = False,
+    sales_gas_pct: Annotated[str | None, Form(max_length=40)] = None,
+    sales_field_id: Annotated[list[int], Form(max_length=10_000)] = [],  # noqa: B006 (FastAPI copies it)
+    sales_field_pct: Annotated[list[str], Form(max_length=10_000)] = [],  # noqa: B006
 ):
-    """The reserves review's team settings: four eyes, and the 2P change (in %) above which a
-    booking needs a written justification (stored as a fraction)."""
-    submitted = {"justify_2p_change_pct": justify_2p_change_pct, "four_eyes": four_eyes}
+    """The reserves review's team settings: four eyes, the 2P change (in %) above which a
+    booking needs a written justification (stored as a fraction), and the sales-gas factor (in
+    %): the team default and each field's own (blank: the team default)."""
+    submitted = {
+        "justify_2p_change_pct": justify_2p_change_pct,
+        "four_eyes": four_eyes,
+        "sales_gas_pct": sales_gas_pct,
+        "sales_field_pct": dict(zip(sales_field_id, sales_field_pct, strict=False)),
+    }
     problems = {}
+    sales_default, by_field = _sales_gas_form(sales_gas_pct, sales_field_id, sales_field_pct, problems)
     try:
         frac = float(justify_2p_change_pct.strip().rstrip("%").strip()) / 100.0
     except ValueError:
@@ -139,8 +152,13 @@ def save_reserves_settings(
             after = reserves_rules.set_reserves_settings(
                 session, user.actor, four_eyes=four_eyes, justify_2p_change_frac=frac
             )
+            gas_before = sales_gas.sales_gas_settings(session)
+            gas_after = sales_gas.set_sales_gas_settings(
+                session, user.actor, sales_gas_frac=sales_default, by_field=by_field
+            )
         except reserves_rules.ReservesError as exc:
-            problems["justify_2p_change_pct"] = str(exc)
+            key = "sales_gas_pct" if str(exc).startswith("reserves.sales_gas") else "justify_2p_change_pct"
+            problems[key] = str(exc)
     if problems:
         session.rollback()
         context = _settings_context(
@@ -149,8 +167,37 @@ def save_reserves_settings(
         return render(request, "admin_settings.html", context, 422)
     session.commit()
     changed = [k for k in ("four_eyes", "justify_2p_change_frac") if getattr(before, k) != getattr(after, k)]
+    changed += ["sales_gas_frac"] if gas_before.sales_gas_frac != gas_after.sales_gas_frac else []
+    changed += ["sales_gas_frac_by_field"] if gas_before.by_field != gas_after.by_field else []
     context = _settings_context(session, settings, reserves_saved={"changed": changed})
     return render(request, "admin_settings.html", context)
+
+
+def _pct(text: str) -> float:
+    """A per cent typed in a form as a fraction; ValueError when it is not in (0, 100]."""
+    frac = float(text.strip().rstrip("%").strip()) / 100.0
+    if sales_gas.check_frac(frac) is None:
+        raise ValueError(text)
+    return frac
+
+
+def _sales_gas_form(default_pct, ids, pcts, problems: dict):
+    """The team default (None: not sent) and {field id: fraction or None (blank)} from the form."""
+    default = None
+    if default_pct is not None:
+        try:
+            default = _pct(default_pct)
+        except ValueError:
+            problems["sales_gas_pct"] = "must be a per cent above 0 and at most 100, e.g. 95"
+    by_field = {}
+    for fid, text in zip(ids, pcts, strict=False):
+        try:
+            by_field[fid] = _pct(text) if text.strip() else None
+        except ValueError:
+            problems[f"sales_field_{fid}"] = (
+                "a per cent above 0 and at most 100, or blank for the team default"
+            )
+    return default, by_field
 
 
 def _without_password(url: str) -> str:

@@ -18,7 +18,7 @@ from fastapi.responses import HTMLResponse, RedirectResponse
 from sqlalchemy import func, select
 
 from ...db.models import AuditEvent
-from ...services.reserves import categories, filters, rules, views, workflow
+from ...services.reserves import categories, filters, rules, snapshot, views, workflow
 from ...services.reserves_report import content
 from ..auth import Analyst, Approver, Principal, Reader
 from ..deps import SessionDep
@@ -81,6 +81,7 @@ def _list_page(request, session, problems=None, submitted=None, status_code=200)
     context = {
         "title": "Reserves reviews",
         "reviews": views.list_reviews(session),
+        "scope_choices": snapshot.scope_choices(session),
         "problems": problems or {},
         "submitted": submitted or {},
     }
@@ -104,8 +105,17 @@ def create_form(
     user: Analyst,
     name: Annotated[str, Form(max_length=200)] = "",
     effective_date: Annotated[str, Form(max_length=40)] = "",
+    scope_asset: Annotated[list[int], Form(max_length=10_000)] = [],  # noqa: B006 (FastAPI copies it)
+    scope_field: Annotated[list[int], Form(max_length=10_000)] = [],  # noqa: B006
 ):
-    submitted = {"name": name, "effective_date": effective_date}
+    """Create a review: the whole portfolio when no asset and no field is ticked, else the
+    fields of the ticked assets and the ticked fields."""
+    submitted = {
+        "name": name,
+        "effective_date": effective_date,
+        "scope_asset": set(scope_asset),
+        "scope_field": set(scope_field),
+    }
     if user.asset_ids is not None:
         problems = {"form": "a review books the whole portfolio: it needs access to every asset"}
         return _list_page(request, session, problems, submitted, 403)
@@ -118,10 +128,19 @@ def create_form(
         problems["name"] = "name: required"
     if not problems:
         try:
-            review = workflow.create_review(session, user.actor, name, date)
+            review = workflow.create_review(
+                session,
+                user.actor,
+                name,
+                date,
+                asset_ids=scope_asset or None,
+                field_ids=scope_field or None,
+                permitted_asset_ids=user.asset_ids,
+            )
         except rules.ReservesError as exc:
             session.rollback()
-            problems[_problem_key(str(exc), ("name", "effective_date"))] = str(exc)
+            keys = ("name", "effective_date", "asset_ids", "field_ids")
+            problems[_problem_key(str(exc), keys).replace("asset_ids", "field_ids")] = str(exc)
         else:
             return done(request, session, review.id)
     return _list_page(request, session, problems, submitted, 422)

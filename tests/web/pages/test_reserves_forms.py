@@ -288,7 +288,12 @@ def test_admin_sets_the_reserves_settings(db, login_as):
     assert r.status_code == 422 and "above 0 %" in r.text
     r = _post(admin, "/admin/settings/reserves", justify_2p_change_pct="25")  # four eyes unticked
     assert r.status_code == 200 and 'id="reserves-settings-saved"' in r.text
-    assert admin.get("/api/reserves/settings").json() == {"four_eyes": False, "justify_2p_change_frac": 0.25}
+    assert admin.get("/api/reserves/settings").json() == {
+        "four_eyes": False,
+        "justify_2p_change_frac": 0.25,
+        "sales_gas_frac": 0.95,
+        "sales_gas_frac_by_field": {},
+    }
     with db.session() as s:
         summary = (
             s.execute(select(AuditEvent.summary).where(AuditEvent.entity_type == "team_setting"))
