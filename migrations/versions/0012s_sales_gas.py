@@ -3,7 +3,7 @@ for sale after fuel, flare and shrinkage) and where it came from (the team defau
 field's own); NULL in snapshots frozen before it existed
 
 Revision ID: 0012s
-Revises: 0010f
+Revises: 0012p
 Create Date: 2026-12-03 18:25:00
 
 Every revision must:
@@ -21,7 +21,7 @@ import sqlalchemy as sa
 from alembic import op
 
 revision: str = "0012s"
-down_revision: str | Sequence[str] | None = "0010f"
+down_revision: str | Sequence[str] | None = "0012p"
 branch_labels: str | Sequence[str] | None = None
 depends_on: str | Sequence[str] | None = None
 

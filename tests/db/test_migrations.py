@@ -302,7 +302,7 @@ def test_0012s_sales_gas_factor_is_not_stated_for_older_snapshots_and_goes_back(
 
     from server.db.session import make_engine
 
-    upgrade(fresh_database_url, "0010f")
+    upgrade(fresh_database_url, "0012p")
     eng = make_engine(fresh_database_url)
     review = (
         "INSERT INTO reserves_review (id, name, effective_date, status, revision, reopen_reason, "
@@ -332,7 +332,7 @@ def test_0012s_sales_gas_factor_is_not_stated_for_older_snapshots_and_goes_back(
         with pytest.raises(sa.exc.IntegrityError), eng.begin() as c:
             c.execute(sa.text(snap.format(id=3, extra=", sales_gas_frac", more=f", {bad}")))
     eng.dispose()
-    downgrade(fresh_database_url, "0010f")
+    downgrade(fresh_database_url, "0012p")
     eng = sa.create_engine(fresh_database_url)
     try:
         cols = {c["name"] for c in sa.inspect(eng).get_columns("reserves_review_field")}
