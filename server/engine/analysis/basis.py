@@ -10,7 +10,7 @@ import math
 from ..diagnosis.flag_rules import raise_flags
 from ..errors import EngineError, InsufficientDataError
 from ..forecast.build import forecast_field
-from ..headline.build import choose_basis, model_outcomes, replace_dynamic
+from ..headline.build import basis_evidence, choose_basis, model_outcomes
 from ..headline.connected import apart_wells, connected_tank_fit
 from ..headline.outcomes import TITLES
 from ..headline.ranges import Z90
@@ -37,7 +37,7 @@ def with_headline(inputs: FieldInputs, screened: PreparedData, result: FieldAnal
         line_sigma = math.log(boot.p10 / boot.p90) / (2.0 * Z90)
     outcomes = model_outcomes(inputs, screened, diag, line=line, corrected=corrected)
     basis = choose_basis(inputs, screened, diag, outcomes, diag.flags, line_scatter_sigma=line_sigma)
-    evidence = replace_dynamic(diag.evidence, basis)
+    evidence = basis_evidence(inputs, screened, diag, basis)
     flags = raise_flags(evidence, inputs.flag_thresholds)
     diag = dataclasses.replace(diag, evidence=evidence, flags=flags)
     out = dataclasses.replace(

@@ -37,17 +37,29 @@ def off_the_best_model(
     sigma_limit: float,
     noise_psia: float | None,
 ) -> tuple[Outlier, ...]:
-    """The candidates that lie more than ``sigma_limit`` noise widths off the best-ranked model.
+    """The candidates that lie more than ``sigma_limit`` noise widths off the best-ranked model
+    (:func:`off_the_fit`); without a ranked model every candidate is kept."""
+    return off_the_fit(outliers, _best_fit(comparison, fits), prepared, sigma_limit, noise_psia)
+
+
+def off_the_fit(
+    outliers: Sequence[Outlier],
+    best: ModelFit | None,
+    prepared: PreparedData,
+    sigma_limit: float,
+    noise_psia: float | None,
+) -> tuple[Outlier, ...]:
+    """The candidates that lie more than ``sigma_limit`` noise widths off the model ``best``,
+    fitted to the included surveys of ``prepared``.
 
     A candidate the model was fitted to is judged by its residual there; one that was set
-    aside before the fits is judged against the model's fitted p/z [psia] interpolated in
+    aside before the fit is judged against the model's fitted p/z [psia] interpolated in
     cumulative production [Bscf] among the same well's fitted surveys (all surveys when the
-    well has fewer than two; the end segments' lines beyond the ends). The noise width is the model's
-    residual standard deviation sqrt(RSS_w / (n − k)) [psia], scaled by the survey's weight.
-    Without a ranked model, or when that model does not describe the data (its noise width
+    well has fewer than two; the end segments' lines beyond the ends). The noise width is the
+    model's residual standard deviation sqrt(RSS_w / (n − k)) [psia], scaled by the survey's
+    weight. Without a model, or when the model does not describe the data (its noise width
     more than :data:`ADEQUATE_NOISE_RATIO` times the scatter about the field's robust trends,
     ``noise_psia``: a model that misses everything explains nothing), every candidate is kept."""
-    best = _best_fit(comparison, fits)
     if best is None or not outliers:
         return tuple(outliers)
     dof = best.n_obs - best.n_params

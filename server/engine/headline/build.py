@@ -6,11 +6,12 @@ import dataclasses
 from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
+from ..diagnosis.explained import off_the_fit
 from ..diagnosis.flags import Flag
 from ..inputs import FieldInputs
 from ..prepare.cumulative import recent_rate_bscf_per_day
 from ..prepare.points import PreparedData
-from .connected import apart_wells, connected_tank_fit
+from .connected import apart_wells, connected_tank_fit, set_apart
 from .neighbour import neighbour_share, neighbour_sigma
 from .outcomes import outcome
 from .ranges import booked_range, sigma_from_interval
@@ -140,6 +141,26 @@ def _neighbour(inputs, prepared, diag, o: ModelOutcome) -> tuple[float | None, s
         "(the range's low end allows for it)"
     )
     return neighbour_sigma(share), note
+
+
+def basis_evidence(inputs: FieldInputs, prepared: PreparedData, diag: Diagnosis, basis: Basis | None):
+    """The flags' evidence once the basis is chosen: the basis as the dynamic estimate and, for
+    a connected tank, outlier candidates held against its line too (a survey the producers'
+    line explains is not a data error; engine/diagnosis/explained.py)."""
+    evidence = replace_dynamic(diag.evidence, basis)
+    if basis is None or basis.model != "connected_tank" or not evidence.outliers:
+        return evidence
+    fit = connected_tank_fit(prepared, inputs.choices, diag.wells)
+    if fit is None:
+        return evidence
+    kept = off_the_fit(
+        evidence.outliers,
+        fit,
+        set_apart(prepared, diag.wells),
+        inputs.flag_thresholds.outlier_sigma,
+        evidence.noise_psia,
+    )
+    return dataclasses.replace(evidence, outliers=kept)
 
 
 def replace_dynamic(evidence, basis: Basis | None):

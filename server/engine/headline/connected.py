@@ -23,6 +23,16 @@ def apart_wells(wells: tuple[WellFinding, ...]) -> tuple[str, ...]:
     return tuple(sorted(f.well for f in wells if f.disagrees and f.near_initial))
 
 
+def set_apart(prepared: PreparedData, wells: tuple[WellFinding, ...]) -> PreparedData:
+    """The prepared data with the set-apart wells' surveys excluded (the connected tank's data)."""
+    apart = set(apart_wells(wells))
+    points = tuple(
+        dataclasses.replace(p, included=False, reason="another compartment") if p.well in apart else p
+        for p in prepared.points
+    )
+    return dataclasses.replace(prepared, points=points)
+
+
 def connected_tank_fit(
     prepared: PreparedData, choices: AnalysisChoices, wells: tuple[WellFinding, ...]
 ) -> ModelFit | None:
@@ -30,12 +40,8 @@ def connected_tank_fit(
     apart = set(apart_wells(wells))
     if not apart:
         return None
-    points = tuple(
-        dataclasses.replace(p, included=False, reason="another compartment") if p.well in apart else p
-        for p in prepared.points
-    )
     try:
-        fit = single_tank_modelfit(dataclasses.replace(prepared, points=points), choices)
+        fit = single_tank_modelfit(set_apart(prepared, wells), choices)
     except EngineError:
         return None
     note = f"surveys of {', '.join(sorted(apart))} set apart as another compartment"

@@ -13,7 +13,7 @@ from ..diagnosis.diagnose import Diagnosis
 from ..diagnosis.flag_rules import raise_flags
 from ..inputs import FieldInputs
 from ..prepare.points import PreparedData
-from .build import choose_basis, model_outcomes, replace_dynamic
+from .build import basis_evidence, choose_basis, model_outcomes
 from .types import Basis, ModelOutcome
 
 
@@ -29,6 +29,6 @@ def headline_without_line(
     basis = choose_basis(inputs, screened, diag, outcomes, diag.flags, line_scatter_sigma=None)
     if basis is None or basis.model == "single_tank":
         return None
-    evidence = replace_dynamic(diag.evidence, basis)
+    evidence = basis_evidence(inputs, screened, diag, basis)
     flags = raise_flags(evidence, inputs.flag_thresholds)
     return basis, outcomes, dataclasses.replace(diag, evidence=evidence, flags=flags)

@@ -22,6 +22,15 @@ def _codes(result) -> set[str]:
     return {f.code for f in result.diagnosis.flags}
 
 
+def test_a_survey_the_producers_line_explains_is_not_an_outlier():
+    # Compartment case, seed 2: the line through every well is refused and no field-wide model
+    # describes the data, so the survey 5 noise widths off the producers' robust trend was
+    # reported; the connected tank (the basis) explains it (headline/build.py basis_evidence).
+    result = analyse_field(CASE_BY_NAME["compartments"].build(2).inputs)
+    assert result.basis.model == "connected_tank"
+    assert "data_outliers" not in _codes(result)
+
+
 def test_surveys_the_best_model_explains_are_not_outliers():
     # Seed 2: before engine 0.6.4 the aquifer field's initial survey (121 psia above a line
     # flattened by influx, 5 noise widths) was reported as "Surveys off the trend"
