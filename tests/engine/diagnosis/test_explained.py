@@ -55,3 +55,21 @@ def test_a_wrong_survey_is_still_reported(case):
     flag = next((f for f in result.diagnosis.flags if f.code == "data_outliers"), None)
     assert flag is not None, _codes(result)
     assert inputs.survey_well[mid] in flag.reason
+
+
+@pytest.mark.parametrize("offset_psia", [-150.0, 150.0])
+@pytest.mark.parametrize("case", ["volumetric", "gauges_off_datum"])
+def test_a_mis_measured_initial_survey_is_reported_and_moves_nothing(case, offset_psia):
+    # A discovery survey 150 psia off (a gauge or datum error) on a closed tank: the line sets it
+    # aside, no model may use it to invent a mechanism, and it is reported. Letting the
+    # mechanism models keep the initial survey was tried and rejected: on these fields it made a
+    # two-tank basis 6-11 % high out of one bad reading (2026-12-03).
+    built = CASE_BY_NAME[case].build(3)
+    inputs = built.inputs
+    p = np.array(inputs.survey_p_psia, float)
+    first = int(np.argmin(np.asarray(inputs.survey_t_days)))
+    p[first] += offset_psia
+    result = analyse_field(dataclasses.replace(inputs, survey_p_psia=p))
+    assert result.basis.model == "single_tank"
+    assert _codes(result) == {"data_outliers"}
+    assert result.giip_best_bscf == pytest.approx(built.truth.giip_bscf, rel=0.015)
