@@ -206,16 +206,20 @@ class TankSolver:
         d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
         return u * d - (1.0 - g.gp_scf / g_scf)
 
-    def jacobian_p(self, p, we, g_scf, pi, m_column):
-        """∂R/∂p: lower triangular."""
+    def jacobian_p(self, p, we, g_scf, pi, m_column, m_toeplitz=None):
+        """∂R/∂p: lower triangular (``m_toeplitz``: lower_toeplitz(m_column), when the caller
+        holds it already)."""
         g, tab = self.grid, self.table
         pz_i = tab.pz(pi)
         gpv = self.gas_pore_volume_rb(g_scf, pi)
         u = tab.pz(p) / pz_i
         d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / gpv
-        jac = lower_toeplitz(m_column)
-        jac *= (-u / gpv)[:, None]
-        jac[np.diag_indices_from(jac)] += tab.dpz(p) / pz_i * d + u * g.ce_per_psi
+        if m_toeplitz is None:
+            jac = lower_toeplitz(m_column)
+            jac *= (-u / gpv)[:, None]
+        else:
+            jac = m_toeplitz * (-u / gpv)[:, None]
+        jac.flat[:: jac.shape[0] + 1] += tab.dpz(p) / pz_i * d + u * g.ce_per_psi  # the diagonal
         return jac
 
     def solve(self, g_scf, pi, kernel_column, p_start=None) -> TankState:
@@ -227,10 +231,11 @@ class TankSolver:
             p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
         p = np.clip(np.asarray(p_start, float), tab.p[0], tab.p[-1])
         converged = False
+        m_toeplitz = lower_toeplitz(m)  # ∂We/∂p: the same in every Newton step
         for _ in range(_NEWTON_MAX_ITER):
             we = self.influx_at(p, pi, kernel_column)
             r = self.residual(p, we, g_scf, pi)
-            jac = self.jacobian_p(p, we, g_scf, pi, m)
+            jac = self.jacobian_p(p, we, g_scf, pi, m, m_toeplitz)
             step = solve_triangular(jac, -r, lower=True, check_finite=False)
             if not np.all(np.isfinite(step)):
                 break
