@@ -11,6 +11,7 @@ field is one produced tank with a hidden neighbour that no well sees.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass
 
@@ -166,7 +167,9 @@ def _predict(theta, prob: _Problem, n_tanks: int) -> np.ndarray:
     pzi = theta[0]
     g = np.exp(np.clip(theta[1 : 1 + n_tanks], *LOG_GIIP_BOUNDS)) * 1e9
     gam = np.exp(np.clip(theta[1 + n_tanks :], *LOG_GAMMA_BOUNDS))
-    u = np.asarray(simulate_star_tanks(g, gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf))
+    march = simulate_star_tanks(g, gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf)
+    # fromiter: about twice as fast as numpy.array on a list of tuples (the fit calls this often)
+    u = np.fromiter(itertools.chain.from_iterable(march), float, n_tanks * len(march)).reshape(-1, n_tanks)
     n, a, k = prob.obs_step, prob.obs_alpha, prob.obs_tank
     prev = u[np.maximum(n - 1, 0), k]
     return pzi * (prev + a * (u[n, k] - prev))
@@ -182,11 +185,10 @@ def _jacobian_two(theta, prob: _Problem) -> np.ndarray:
     gam = math.exp(min(max(lgam, LOG_GAMMA_BOUNDS[0]), LOG_GAMMA_BOUNDS[1]))
     # Python floats: the march is scalar code, and numpy scalars would make every operation
     # in it several times slower (the same values, bit for bit).
-    march = np.array(
-        simulate_two_with_sensitivities(
-            float(g[0]), float(g[1]), gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf
-        )
+    rows = simulate_two_with_sensitivities(
+        float(g[0]), float(g[1]), gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf
     )
+    march = np.fromiter(itertools.chain.from_iterable(rows), float, 10 * len(rows)).reshape(-1, 10)
     u = march[:, :2]  # (steps + 1, 2)
     du = march[:, 2:].reshape(-1, 2, 4)  # (steps + 1, tank, by pzi, G0, G1, Gamma)
     inside = np.array(

@@ -119,3 +119,16 @@ def test_newton_from_the_tangent_prediction_finds_the_same_history(model):
     cold = problem.solver.solve(g, pi, k, None)
     assert warm.converged and cold.converged
     assert np.max(np.abs(warm.p_psia - cold.p_psia)) < 1e-6  # Newton's tolerance is 1e-7 psi
+
+
+def test_the_grid_is_built_once_for_the_same_field_and_shared_read_only():
+    inputs = twenty_year_field("volumetric")
+    prepared = prepare(inputs)
+    grid = hm.tank_grid(inputs, prepared)
+    assert hm.tank_grid(inputs, prepared) is grid
+    again = prepare(inputs)  # equal data, another object: built afresh, the same numbers
+    other = hm.tank_grid(inputs, again)
+    assert other is not grid
+    assert np.array_equal(other.gp_scf, grid.gp_scf) and np.array_equal(other.obs_interp, grid.obs_interp)
+    with pytest.raises(ValueError):
+        grid.gp_scf[0] = 0.0
