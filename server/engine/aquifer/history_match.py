@@ -68,7 +68,7 @@ DEFAULT_MODELS = ("aquifer_pot", "aquifer_fetkovich", "aquifer_veh_radial")
 #: linearised optimum (:meth:`_Problem.settled`).
 SETTLED_SE = 0.1
 #: Models the stopping rule ends (pot and Fetkovich converge by the tolerances within a few
-#: solves; the vEH fit walked along its valley to the cap).
+#: solves; the vEH fit, in plain coordinates, walked along its valley to the cap).
 SETTLED_STOP = ("aquifer_veh_radial",)
 #: Safety cap on balance solves per fit (a fit wandering along a flat valley).
 MAX_EVALUATIONS = 30
