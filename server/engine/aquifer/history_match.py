@@ -208,7 +208,7 @@ class _Problem:
             frac = we_total[-1] / solver.gas_pore_volume_rb(g, pi)
             self.influx_frac_gradient[j] = (frac - frac0) / steps[j]
         self._last_jac = (key, self.sqrt_w[:, None] * jac, self.influx_frac_gradient.copy())
-        self._tangent = (theta, st.p_psia, dp_dtheta)
+        self._tangent = (theta.copy(), st.p_psia, dp_dtheta)
         return self._last_jac[1]
 
     def settled(self, theta, resid_w, bounds) -> bool:
