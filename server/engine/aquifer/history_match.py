@@ -11,9 +11,11 @@ time constant (and r_eD) (:func:`.havlena_odeh.havlena_odeh_scan`).
 Parameters θ = [ln G, p_i/p_i,given (unless anchored), s/s_ref, ln time constant], all of
 order one, with s the aquifer strength [rb/psi] and s_ref the gas pore volume per psi of
 initial pressure; models with a time constant use ln(s/s_ref), because strength and time
-constant trade off along a valley that is nearly straight on log scales. The Jacobian is
-exact to first order: dp/dθ = −(∂R/∂p)⁻¹ ∂R/∂θ (implicit function theorem, one triangular
-solve), with the partial derivatives at fixed pressures taken by forward differences.
+constant trade off along a valley that is nearly straight on log scales; the van
+Everdingen-Hurst fit takes ln(s W_D(t_D,end)/s_ref) instead, which lays that valley along
+the time-constant axis (:meth:`_Problem.valley_log_wd`). The Jacobian is exact to first
+order: dp/dθ = −(∂R/∂p)⁻¹ ∂R/∂θ (implicit function theorem, one triangular solve), with
+the partial derivatives at fixed pressures taken by forward differences.
 
 Uncertainty: covariance s² (JᵀJ)⁻¹ at the optimum, s² = RSS/(n − k), carried to the
 reported parameters by the delta method; GIIP's interval is taken on ln G (so it stays
@@ -39,6 +41,7 @@ from ..inputs import FieldInputs
 from ..modelfit import WEIGHTED_RSS_NOTE, ModelFit, parameter_words
 from ..prepare.points import PreparedData
 from ..stats import t_quantile
+from .dimensionless import influx_table
 from .havlena_odeh import havlena_odeh_line_on_surveys, havlena_odeh_scan
 from .influx import causal_convolution
 from .models import SPECS, AquiferModelSpec, KernelCache
@@ -65,12 +68,14 @@ DEFAULT_MODELS = ("aquifer_pot", "aquifer_fetkovich", "aquifer_veh_radial")
 #: linearised optimum (:meth:`_Problem.settled`).
 SETTLED_SE = 0.1
 #: Models the stopping rule ends (pot and Fetkovich converge by the tolerances within a few
-#: solves; the vEH fit walked along its valley to the cap).
+#: solves; the vEH fit, in plain coordinates, walked along its valley to the cap).
 SETTLED_STOP = ("aquifer_veh_radial",)
 #: Safety cap on balance solves per fit (a fit wandering along a flat valley).
 MAX_EVALUATIONS = 30
 #: Models whose start is the scan's line or a no-aquifer start, by the forward model's misfit.
 FORWARD_CHECKED_STARTS = ("aquifer_veh_radial",)
+#: Models fitted in valley coordinates (:meth:`_Problem.valley_log_wd`).
+VALLEY_MODELS = ("aquifer_veh_radial",)
 #: Strength of the "no aquifer" starting candidate, in gas pore volumes per psi of p_i.
 NO_SUPPORT_START = 1e-6
 
@@ -78,14 +83,21 @@ NO_SUPPORT_START = 1e-6
 class _Problem:
     """θ → weighted p/z residuals at the surveys, and their Jacobian."""
 
-    def __init__(self, grid: TankGrid, spec: AquiferModelSpec, red, fit_pi: bool, s_ref: float):
+    def __init__(
+        self, grid: TankGrid, spec: AquiferModelSpec, red, fit_pi: bool, s_ref: float, along_valley=False
+    ):
         self.grid, self.spec, self.fit_pi, self.s_ref = grid, spec, fit_pi, s_ref
+        # Valley coordinates (vEH only): θ_strength = ln(U W_D(t_D,end) / s_ref), see valley_log_wd.
+        self.along_valley = along_valley and spec.name in VALLEY_MODELS
+        self._wd_table = influx_table("radial", red) if self.along_valley else None
+        self._log_wd: dict[float, tuple[float, float]] = {}  # rate -> valley_log_wd(rate)
         self.kernels = KernelCache(spec, float(grid.t_days[0]), grid.n_steps, red)
         self.solver = TankSolver(grid, spec.influx)
         self.sqrt_w = np.sqrt(grid.obs_weight)
         self.i_strength = 2 if fit_pi else 1
         self._last = None  # (key, state, fitted p/z)
         self._last_jac = None  # (key, weighted Jacobian)
+        self._tangent = None  # (θ, pressures, dp/dθ) at the last Jacobian: Newton's start
         self.influx_frac_gradient = None  # d(We_end / (G B_gi))/dθ, set by jacobian()
         self.stopped_settled = False  # set when the stopping rule of settled() ended the fit
 
@@ -94,13 +106,47 @@ class _Problem:
         pi = self.grid.initial_pressure_psia * (float(theta[1]) if self.fit_pi else 1.0)
         i = self.i_strength
         if self.spec.has_rate:  # log scales: strength and time constant trade off along a valley
-            return (
-                float(np.exp(theta[0])) * 1e9,
-                pi,
-                float(np.exp(theta[i])) * self.s_ref,
-                float(np.exp(theta[i + 1])),
-            )
+            rate = float(np.exp(theta[i + 1]))
+            log_w = self.valley_log_wd(rate)[0]
+            return float(np.exp(theta[0])) * 1e9, pi, float(np.exp(theta[i] - log_w)) * self.s_ref, rate
         return float(np.exp(theta[0])) * 1e9, pi, float(theta[i]) * self.s_ref, None
+
+    def valley_log_wd(self, rate):
+        """(ln W_D(t_D at the end of the history), its slope d ln W_D / d ln t_D) in valley
+        coordinates, (0, 0) in plain ones.
+
+        The van Everdingen-Hurst influx is U Σ Δp_j W_D(t_D (t − t_j)). Where the data see
+        only early times (W_D ≈ 2 √(t_D/π)) the surveys fix U √t_D, not U and t_D apart; where
+        they see only the plateau of a bounded aquifer (W_D ≈ (r_eD² − 1)/2), U W_D and not
+        t_D. Both are U W_D(t_D,end): as the strength coordinate it turns the valley of the
+        misfit (u and t_D correlated at −1.000 on the benchmark's aquifer field) into a
+        line along the time-constant axis, which the trust region follows in a few steps
+        instead of walking it (van Everdingen & Hurst 1949 for W_D's limits; the same
+        model and optimum, only the coordinates change).
+        """
+        if self._wd_table is None:
+            return 0.0, 0.0
+        cached = self._log_wd.get(rate)
+        if cached is None:
+            if len(self._log_wd) > 64:
+                self._log_wd.clear()
+            log_w, slope = self._wd_table.log_value_and_slope(np.log(rate * float(self.grid.t_days[-1])))
+            cached = self._log_wd[rate] = (float(log_w), float(slope))
+        return cached
+
+    def from_plain(self, theta, bounds):
+        """θ and bounds in plain coordinates (ln(s/s_ref), ln rate) to this problem's.
+
+        The strength's bounds become the envelope of the plain box: from the lower bound at
+        the smallest time constant to the upper bound at the largest.
+        """
+        theta, lo, hi = (np.array(v, float) for v in (theta, *bounds))
+        if self.along_valley:
+            i = self.i_strength
+            theta[i] += self.valley_log_wd(float(np.exp(theta[i + 1])))[0]
+            lo[i] += self.valley_log_wd(float(np.exp(lo[i + 1])))[0]
+            hi[i] += self.valley_log_wd(float(np.exp(hi[i + 1])))[0]
+        return theta, (lo, hi)
 
     def kernel(self, theta):
         g, pi, strength, rate = self.unpack(theta)
@@ -111,12 +157,21 @@ class _Problem:
         if self._last is not None and self._last[0] == key:
             return self._last[1], self._last[2]
         g, pi, k = self.kernel(theta)
-        st = self.solver.solve(g, pi, k, None if self._last is None else self._last[1].p_psia)
-        if not st.converged:
+        st = self.solver.solve(g, pi, k, self._predicted_p(theta))
+        if not st.converged and self._last is not None:  # from the volumetric history instead
             st = self.solver.solve(g, pi, k, None)
         y = self.solver.observe(st.we_rb, g, pi, st.p_psia)
         self._last = (key, st, y)
         return st, y
+
+    def _predicted_p(self, theta):
+        """Newton's start: the pressures at the last Jacobian moved by dp/dθ (θ − θ_J), else the
+        last solve's pressures, else None (the volumetric history). Only the start changes: the
+        solve converges to the same history (to 1e-7 psi) in fewer steps."""
+        if self._tangent is not None:
+            theta_j, p_j, dp_dtheta = self._tangent
+            return p_j + dp_dtheta @ (np.asarray(theta, float) - theta_j)
+        return None if self._last is None else self._last[1].p_psia
 
     def residuals(self, theta):
         _, y = self.state(theta)
@@ -137,6 +192,7 @@ class _Problem:
         jac = np.empty((y.size, theta.size))
         frac0 = st.we_rb[-1] / solver.gas_pore_volume_rb(g0, pi0)
         self.influx_frac_gradient = np.empty(theta.size)
+        dp_dtheta = np.empty((st.p_psia.size, theta.size))
         for j in range(theta.size):
             th = theta.copy()
             th[j] += steps[j]
@@ -146,11 +202,13 @@ class _Problem:
             dp = -solve_triangular(
                 jac_p, solver.residual(st.p_psia, we, g, pi) - r0, lower=True, check_finite=False
             )  # dp/dθ_j x step
+            dp_dtheta[:, j] = dp / steps[j]
             we_total = we + causal_convolution(st.dwe_dp_column, dp)
             jac[:, j] = (solver.observe(we_total, g, pi, st.p_psia + dp) - y) / steps[j]
             frac = we_total[-1] / solver.gas_pore_volume_rb(g, pi)
             self.influx_frac_gradient[j] = (frac - frac0) / steps[j]
         self._last_jac = (key, self.sqrt_w[:, None] * jac, self.influx_frac_gradient.copy())
+        self._tangent = (theta.copy(), st.p_psia, dp_dtheta)
         return self._last_jac[1]
 
     def settled(self, theta, resid_w, bounds) -> bool:
@@ -248,7 +306,8 @@ def _theta_of_start(inputs: FieldInputs, grid: TankGrid, spec: AquiferModelSpec,
 
 def _fit(inputs: FieldInputs, grid: TankGrid, spec: AquiferModelSpec, reds) -> ModelFit:
     x0, bounds, fit_pi, s_ref, red = _start_and_bounds(inputs, grid, spec, reds)
-    problem = _Problem(grid, spec, red, fit_pi, s_ref)
+    problem = _Problem(grid, spec, red, fit_pi, s_ref, along_valley=True)
+    x0, bounds = problem.from_plain(x0, bounds)
 
     def stop(intermediate_result):  # scipy calls it after each iteration; True ends the fit
         return problem.settled(intermediate_result.x, intermediate_result.fun, bounds)
@@ -281,7 +340,9 @@ def _reported(spec: AquiferModelSpec, problem: _Problem, theta):
         names.append("initial_pressure_psia")
         values.append(pi)
         rows.append(eye[1] * problem.grid.initial_pressure_psia)
-    ds = eye[i] * (strength if spec.has_rate else problem.s_ref)  # d strength / dθ_i
+    ds = eye[i] * (strength if spec.has_rate else problem.s_ref)  # d strength / dθ
+    if spec.has_rate:  # in valley coordinates the strength is exp(θ_i) s_ref / W_D(rate t_end)
+        ds = ds - eye[i + 1] * strength * problem.valley_log_wd(rate)[1]
     if spec.name == "aquifer_fetkovich":  # Fetkovich's own pair: Wei = c_t W_i p_i, J = λ c_t W_i
         d_pi = eye[1] * problem.grid.initial_pressure_psia if problem.fit_pi else 0.0
         names += ["wei_rb", "j_rb_per_day_psi"]

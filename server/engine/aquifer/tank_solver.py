@@ -107,10 +107,32 @@ def interpolation_matrix(x, knots) -> np.ndarray:
     return a
 
 
+#: The last grid built, with the objects it was built from: a field's analysis asks for the
+#: same grid once for the history match and once per fitted model stepped past the history.
+_last_grid: tuple = (None, None, None, None)
+
+
 def tank_grid(
     inputs: FieldInputs, prepared: PreparedData, *, bw_rb_per_stb: float = DEFAULT_BW_RB_PER_STB
 ) -> TankGrid:
-    """Put a field's production and included surveys on a uniform grid."""
+    """Put a field's production and included surveys on a uniform grid.
+
+    The inputs and prepared data are frozen, so a call with the very same objects as the
+    last one returns the last grid (read-only: callers derive new grids with
+    ``dataclasses.replace``)."""
+    global _last_grid
+    last_inputs, last_prepared, last_bw, last = _last_grid
+    if last_inputs is inputs and last_prepared is prepared and last_bw == bw_rb_per_stb:
+        return last
+    grid = _build_tank_grid(inputs, prepared, bw_rb_per_stb)
+    for value in vars(grid).values():  # shared: an in-place change would raise, not leak
+        if isinstance(value, np.ndarray):
+            value.flags.writeable = False
+    _last_grid = (inputs, prepared, bw_rb_per_stb, grid)
+    return grid
+
+
+def _build_tank_grid(inputs: FieldInputs, prepared: PreparedData, bw_rb_per_stb: float) -> TankGrid:
     ends = np.asarray(prepared.production_end_t_days, float)
     if ends.size == 0:
         raise InsufficientDataError("no production: there is nothing to match")
@@ -207,31 +229,44 @@ class TankSolver:
         return u * d - (1.0 - g.gp_scf / g_scf)
 
     def jacobian_p(self, p, we, g_scf, pi, m_column):
-        """∂R/∂p: lower triangular."""
+        """∂R/∂p: lower triangular, diag(c) − diag(a) T(m) (:meth:`_balance_parts`)."""
+        _, a, c = self._balance_parts(p, we, g_scf, pi)
+        jac = lower_toeplitz(m_column)
+        jac *= -a[:, None]
+        jac.flat[:: jac.shape[0] + 1] += c  # the diagonal
+        return jac
+
+    def _balance_parts(self, p, we, g_scf, pi):
+        """(R, a, c): the residual and ∂R/∂p = diag(c) − diag(a) T(m), with a = u/(G B_gi) > 0
+        and T(m) = ∂We/∂p."""
         g, tab = self.grid, self.table
         pz_i = tab.pz(pi)
         gpv = self.gas_pore_volume_rb(g_scf, pi)
         u = tab.pz(p) / pz_i
         d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / gpv
-        jac = lower_toeplitz(m_column)
-        jac *= (-u / gpv)[:, None]
-        jac[np.diag_indices_from(jac)] += tab.dpz(p) / pz_i * d + u * g.ce_per_psi
-        return jac
+        return u * d - (1.0 - g.gp_scf / g_scf), u / gpv, tab.dpz(p) / pz_i * d + u * g.ce_per_psi
 
     def solve(self, g_scf, pi, kernel_column, p_start=None) -> TankState:
         """Newton's method on the whole pressure history (the Jacobian is refreshed every step:
-        with a strong aquifer a frozen one overshoots)."""
+        with a strong aquifer a frozen one overshoots).
+
+        Each step solves the row-scaled system (diag(c/a) − T(m)) δ = −R/a, whose matrix is
+        −T(m) but for its diagonal: T(m) is built once, and a step costs one triangular solve.
+        """
         g, tab = self.grid, self.table
         m = dwe_dp_column(kernel_column, self.influx.bands)
         if p_start is None:  # the volumetric history
             p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
         p = np.clip(np.asarray(p_start, float), tab.p[0], tab.p[-1])
         converged = False
+        scaled = -lower_toeplitz(m)
+        diagonal = scaled.reshape(-1)[:: p.size + 1]  # a view: the diagonal, set at every step
         for _ in range(_NEWTON_MAX_ITER):
             we = self.influx_at(p, pi, kernel_column)
-            r = self.residual(p, we, g_scf, pi)
-            jac = self.jacobian_p(p, we, g_scf, pi, m)
-            step = solve_triangular(jac, -r, lower=True, check_finite=False)
+            r, a, c = self._balance_parts(p, we, g_scf, pi)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                diagonal[:] = c / a - m[0]
+                step = solve_triangular(scaled, -r / a, lower=True, check_finite=False)
             if not np.all(np.isfinite(step)):
                 break
             p_new = np.clip(p + step, tab.p[0], tab.p[-1])
