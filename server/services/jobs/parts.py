@@ -117,12 +117,14 @@ def failures_head(failures: list[str], total: int) -> str | None:
 
 
 def progress(session: Session, parent_id: int, stale_after: dt.timedelta = STALE_AFTER) -> tuple[bool, int]:
-    """(whether a part is there to claim, how many parts have not ended) - reads only."""
+    """(whether a claim has a part to take or to give up, how many parts have not ended) -
+    reads only. A dead worker's part counts however often it was tried: the claim marks it
+    failed when it has been tried too often (:func:`.queue.claim_next`)."""
     stale_before = utcnow() - stale_after
     dead = (Job.status == "running") & (Job.heartbeat_at < stale_before)
     parts = select(Job.id).where(Job.parent_id == parent_id)
     claimable = session.execute(
-        parts.where(or_(Job.status == "queued", dead), Job.attempts < MAX_ATTEMPTS).limit(1)
+        parts.where(or_((Job.status == "queued") & (Job.attempts < MAX_ATTEMPTS), dead)).limit(1)
     ).first()
     open_parts = session.execute(
         select(func.count()).select_from(parts.where(Job.status.in_(("queued", "running"))).subquery())
@@ -146,7 +148,7 @@ def settle(session: Session, parent_id: int) -> str | None:
     errors = [failures_text(session, parent_id, parent.progress_total)]
     if given_up:
         missed = sum(p.progress_total - p.progress_done for p in given_up)
-        errors.insert(0, f"{missed} fields were not recomputed: {given_up[0].error}")
+        errors.insert(0, f"fields not recomputed: {missed} (a part was given up: {given_up[0].error})")
     parent.error = "; ".join(e for e in errors if e)[:2000] or None
     parent.status = "failed" if given_up else "done"
     parent.finished_at = utcnow()

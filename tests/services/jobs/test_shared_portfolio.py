@@ -135,3 +135,28 @@ def test_a_part_taken_over_resumes_and_its_first_worker_stops(db, session, monke
         assert parts.settle(s, parent_id) == "done"
     session.expire_all()
     assert session.get(Job, parent_id).progress_done == 3  # from the part, counted once
+
+
+def test_a_part_given_up_ends_the_portfolio_job_failed_after_the_other_parts(real_db):
+    """A part whose workers keep dying is given up (as any job is); the other parts still
+    run, and the portfolio job then ends "failed", saying how many fields were missed.
+    (A real database: the parts run with their heartbeat threads.)"""
+    db, _ = real_db
+    with db.session() as s:
+        for name in ("A", "B"):
+            add_volumetric_history(s, make_field(s, name=name))
+        parent_id = jobs.enqueue_portfolio_recompute(s, reason="test").id
+    with db.session() as s:
+        assert jobs.claim_next(s, "driver").id == parent_id
+        parts.split(s, parent_id)
+    for k in range(jobs.MAX_ATTEMPTS):  # one part's workers die, one after the other
+        with db.session() as s:
+            doomed_id = jobs.claim_next(s, f"w{k}", dt.timedelta(0), parent_id=parent_id).id
+    runner.run_job(db, parent_id, stale_after=dt.timedelta(0))
+    with db.session() as s:
+        assert s.get(Job, doomed_id).status == "failed"
+        others = s.execute(select(Job).where(Job.parent_id == parent_id, Job.id != doomed_id)).scalars()
+        assert {(p.status, p.claimed_by) for p in others} == {("done", "driver")}
+        parent = s.get(Job, parent_id)
+        assert (parent.status, parent.progress_done, parent.progress_total) == ("failed", 2, 3)
+        assert parent.error.startswith("fields not recomputed: 1 (a part was given up: its worker stopped")
