@@ -45,10 +45,19 @@ def test_two_workers_share_one_portfolio_recompute(real_db, monkeypatch):
 
     def recorded(session, field):
         calls.append((threading.get_ident(), field.id))
-        time.sleep(0.05)  # leaves the other thread the interpreter: both must get parts
         return real(session, field)
 
+    real_hold = parts.hold
+
+    def paused_hold(session, *args):
+        # A pause before each field's transaction begins: on SQLite a worker that commits and
+        # at once begins again keeps the write lock from the other, which sleeps between its
+        # tries (busy timeout); the pause gives it its turn, as slower fields would.
+        time.sleep(0.15)
+        return real_hold(session, *args)
+
     monkeypatch.setattr(runner, "recompute_field", recorded)
+    monkeypatch.setattr(parts, "hold", paused_hold)
     monkeypatch.setattr(recompute, "analyse_field", _boom_for("Shared 05", recompute.analyse_field))
     databases = [Database(url), Database(url)]
     workers = [Worker(d, poll_seconds=0.05, name=f"worker-{k}") for k, d in enumerate(databases)]
