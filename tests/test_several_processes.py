@@ -2,10 +2,10 @@
 two `tankbook serve` processes and two `tankbook worker` processes, started as an operator
 would start them. The demo portfolio queues one recompute per field; a portfolio recompute
 is queued through the first app, and the second app, asked for the same, answers with the
-same job (both see one queue). Every job must run exactly once (one claim each, done) and
-every field must end with exactly one estimate: a field recomputed by its own job and by the
-portfolio job, perhaps at the same moment in the two workers, is locked row by row and
-fingerprinted, so the second recompute writes nothing."""
+same job (both see one queue); the workers share it by its parts (issue 17). Every job must
+run exactly once (one claim each, done) and every field must end with exactly one estimate:
+a field recomputed by its own job and by the portfolio job, perhaps at the same moment in the
+two workers, is locked row by row and fingerprinted, so the second recompute writes nothing."""
 
 from __future__ import annotations
 
@@ -153,7 +153,15 @@ def test_two_apps_and_two_workers_run_every_job_once(database, tmp_path):
             except subprocess.TimeoutExpired:
                 p.kill()
     with db.session() as s:
-        jobs = s.execute(sa.select(Job.kind, Job.status, Job.attempts, Job.claimed_by, Job.error)).all()
+        jobs = s.execute(
+            sa.select(Job.kind, Job.status, Job.attempts, Job.claimed_by, Job.error).where(
+                Job.parent_id.is_(None)
+            )
+        ).all()
+        # the portfolio job's parts (issue 17): each claimed once, and together every field once
+        parts = s.execute(
+            sa.select(Job.status, Job.attempts, Job.field_ids).where(Job.parent_id.isnot(None))
+        ).all()
         per_field = dict(
             s.execute(sa.select(Estimate.field_id, sa.func.count()).group_by(Estimate.field_id)).all()
         )
@@ -162,5 +170,7 @@ def test_two_apps_and_two_workers_run_every_job_once(database, tmp_path):
     assert len(jobs) == FIELDS + 1
     assert [(k, st, a, e) for k, st, a, _, e in jobs if (st, a, e) != ("done", 1, None)] == []
     assert len({w for *_, w, _ in jobs}) == 2, "both workers ran jobs"
+    assert [(st, a) for st, a, _ in parts if (st, a) != ("done", 1)] == []
+    assert sorted(i for *_, ids in parts for i in ids) == sorted(field_ids)
     assert sorted(fields) == sorted(field_ids)
     assert per_field == {fid: 1 for fid in field_ids}

@@ -73,7 +73,9 @@ class Upload(Base):
 
 
 class Job(Base):
-    """A unit of background work (recompute of one field, or of the portfolio)."""
+    """A unit of background work: a recompute of one field, of the portfolio, or a part of
+    a portfolio recompute (``parent_id`` its portfolio job, ``field_ids`` its fields), which
+    any worker may claim (issue 17)."""
 
     __tablename__ = "job"
     __table_args__ = (
@@ -93,6 +95,8 @@ class Job(Base):
     error: Mapped[str | None] = mapped_column(Text)
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     finished_at: Mapped[dt.datetime | None] = mapped_column()
+    parent_id: Mapped[int | None] = mapped_column(ForeignKey("job.id", ondelete="CASCADE"), index=True)
+    field_ids: Mapped[list | None] = mapped_column(JSON)
 
 
 class RecomputeFailure(Base):

@@ -1,5 +1,8 @@
 """A small job queue in the database: recompute one field, or the whole portfolio.
 
+A portfolio recompute is split into parts of a few fields each when a worker takes it up
+(:mod:`.parts`); any worker claims parts, so every worker shares one portfolio recompute.
+
 This module queues, claims and describes jobs; :mod:`.runner` runs them.
 
 Works with several app or worker processes on both databases:
@@ -36,6 +39,7 @@ STALE_AFTER = dt.timedelta(seconds=15)
 MAX_ATTEMPTS = 3
 FIELD_JOB = "recompute_field"
 PORTFOLIO_JOB = "recompute_portfolio"
+PART_JOB = "recompute_part"  # a few fields of a portfolio recompute (``parent_id``, ``field_ids``)
 
 
 def worker_name() -> str:
@@ -118,8 +122,14 @@ def has_work(session: Session, stale_after: dt.timedelta = STALE_AFTER) -> bool:
     )
 
 
-def claim_next(session: Session, worker: str, stale_after: dt.timedelta = STALE_AFTER) -> Job | None:
-    """Mark the oldest runnable job as running by ``worker`` and return it."""
+def claim_next(
+    session: Session, worker: str, stale_after: dt.timedelta = STALE_AFTER, *, parent_id: int | None = None
+) -> Job | None:
+    """Mark the oldest runnable job as running by ``worker`` and return it.
+
+    Jobs of their own (a field's, a portfolio's) come before the parts of a portfolio
+    recompute, so a field queued by a user is not kept waiting behind thousands of fields;
+    ``parent_id``: only the parts of that portfolio job."""
     now = utcnow()
     stale_before = now - stale_after
     write_first(session)
@@ -136,9 +146,11 @@ def claim_next(session: Session, worker: str, stale_after: dt.timedelta = STALE_
     stmt = (
         select(Job)
         .where(or_(Job.status == "queued", dead), Job.attempts < MAX_ATTEMPTS)
-        .order_by(Job.id)
+        .order_by(Job.parent_id.is_not(None), Job.id)
         .limit(1)
     )
+    if parent_id is not None:
+        stmt = stmt.where(Job.parent_id == parent_id)
     if is_postgresql(session):
         stmt = stmt.with_for_update(skip_locked=True)
     job = session.execute(stmt).scalar_one_or_none()
@@ -216,5 +228,7 @@ def get_job(session: Session, job_id: int, asset_ids: frozenset[int] | None = No
 
 
 def recent_jobs(session: Session, limit: int = 20, asset_ids: frozenset[int] | None = None) -> list[JobView]:
-    rows = session.execute(_visible(select(Job), asset_ids).order_by(Job.id.desc()).limit(limit)).scalars()
+    """The latest jobs people queued (a portfolio recompute's parts are its own business)."""
+    stmt = _visible(select(Job).where(Job.parent_id.is_(None)), asset_ids)
+    rows = session.execute(stmt.order_by(Job.id.desc()).limit(limit)).scalars()
     return [job_view(j) for j in rows]

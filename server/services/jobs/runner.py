@@ -15,10 +15,12 @@ from sqlalchemy.orm import Session
 from ...db.base import utcnow
 from ...db.models import Field, Job
 from ...db.session import Database
+from . import parts
 from .failures import clear_failure, describe, record_failure
 from .queue import (
     FIELD_JOB,
     MAX_ATTEMPTS,
+    PART_JOB,
     PORTFOLIO_JOB,
     STALE_AFTER,
     claim_next,
@@ -31,6 +33,7 @@ from .queue import (
 from .recompute import recompute_field
 
 log = logging.getLogger(__name__)
+PART_WAIT_SECONDS = 0.25  # how often a portfolio job's worker looks at the other workers' parts
 
 
 def _recompute_one(session: Session, field_id: int, job_id: int | None = None) -> str | None:
@@ -59,19 +62,27 @@ def _recompute_one(session: Session, field_id: int, job_id: int | None = None) -
     return None
 
 
-def run_job(db: Database, job_id: int, on_progress: Callable[[int, int], None] | None = None) -> None:
+def run_job(
+    db: Database,
+    job_id: int,
+    on_progress: Callable[[int, int], None] | None = None,
+    stale_after: dt.timedelta = STALE_AFTER,
+) -> None:
     """Run a claimed job to its end (or raise, leaving it to be retried).
 
-    A field that fails does not stop a portfolio job: the others are recomputed, and the
-    job ends "done" with the failures listed in its ``error`` (a field job ends "failed")."""
+    A portfolio job is split into parts that every worker may claim (:mod:`.parts`); this
+    worker works on them too and ends the job when every part has ended. A field that fails
+    does not stop a portfolio job: the others are recomputed, and the job ends "done" with
+    the failures listed in its ``error`` (a field job ends "failed")."""
     with db.session() as session:
         touch(session, job_id)  # a write first (SQLite: the write lock before any read)
         job = session.get(Job, job_id)
-        kind, field_id = job.kind, job.field_id
-        if kind == PORTFOLIO_JOB:
-            ids = list(session.execute(select(Field.id).order_by(Field.id)).scalars())
-            touch(session, job_id, progress_total=len(ids), progress_done=0)
-    if kind == FIELD_JOB:
+        kind, field_id, worker = job.kind, job.field_id, job.claimed_by
+    if kind == PORTFOLIO_JOB:
+        _run_portfolio(db, job_id, worker or worker_name(), on_progress, stale_after)
+    elif kind == PART_JOB:
+        _run_part(db, job_id, on_progress)
+    elif kind == FIELD_JOB:
         with db.session() as session:
             touch(session, job_id)
             failure = _recompute_one(session, field_id, job_id) if field_id is not None else None
@@ -84,28 +95,52 @@ def run_job(db: Database, job_id: int, on_progress: Callable[[int, int], None] |
                 progress_total=1,
                 finished_at=utcnow(),
             )
-        return
-    if kind != PORTFOLIO_JOB:
+    else:
         raise ValueError(f"unknown job kind {kind!r}")
-    failures = []
-    for done, fid in enumerate(ids, start=1):
-        with db.session() as session:
-            touch(session, job_id)
-            failure = _recompute_one(session, fid, job_id)
-            if failure:
-                failures.append(failure)
-            touch(session, job_id, progress_done=done, error=_failures_text(failures, len(ids)))
-        if on_progress:
-            on_progress(done, len(ids))
+
+
+def _run_portfolio(db, job_id, worker, on_progress, stale_after) -> None:
+    """Split the portfolio job, run its parts that no other worker has taken, then wait for
+    the others' and end the job (a dead worker's part is taken over here too)."""
     with db.session() as session:
-        touch(session, job_id, status="done", finished_at=utcnow())
+        touch(session, job_id)
+        parts.split(session, job_id)
+    while True:
+        with db.session() as session:
+            claimable, open_parts = parts.progress(session, job_id, stale_after)
+        if claimable:
+            with db.session() as session:
+                part = claim_next(session, worker, stale_after, parent_id=job_id)
+                part_id = part.id if part is not None else None
+            if part_id is not None:
+                _run_claimed(db, part_id, worker, stale_after, on_progress)
+            continue
+        if not open_parts:
+            with db.session() as session:
+                write_first(session)
+                if parts.settle(session, job_id) is not None:
+                    return
+        time.sleep(PART_WAIT_SECONDS)  # the last parts are another worker's
 
 
-def _failures_text(failures: list[str], total: int) -> str | None:
-    if not failures:
-        return None
-    head = f"{len(failures)} of {total} fields could not be recomputed (their estimates are stale): "
-    return (head + "; ".join(failures))[:2000]
+def _run_part(db: Database, part_id: int, on_progress: Callable[[int, int], None] | None) -> None:
+    """Recompute a part's fields from where it stopped, one transaction a field."""
+    with db.session() as session:
+        touch(session, part_id)
+        part = session.get(Job, part_id)
+        ids, done, error = list(part.field_ids or []), part.progress_done, part.error
+        parent_id, worker = part.parent_id, part.claimed_by
+    for k in range(done, len(ids)):
+        with db.session() as session:
+            parts.hold(session, part_id, worker, k)
+            failure = _recompute_one(session, ids[k], parent_id)
+            if failure:
+                error = f"{error}; {failure}" if error else failure
+            portfolio_done, portfolio_total = parts.field_done(session, part_id, parent_id, k + 1, error)
+        if on_progress:
+            on_progress(portfolio_done, portfolio_total)
+    with db.session() as session:
+        parts.finish_part(session, part_id, worker, len(ids))
 
 
 class Heartbeat:
@@ -163,12 +198,20 @@ def run_one(db: Database, worker: str | None = None, stale_after: dt.timedelta =
     return True
 
 
-def _run_claimed(db: Database, job_id: int, worker: str, stale_after: dt.timedelta = STALE_AFTER) -> None:
+def _run_claimed(
+    db: Database,
+    job_id: int,
+    worker: str,
+    stale_after: dt.timedelta = STALE_AFTER,
+    on_progress: Callable[[int, int], None] | None = None,
+) -> None:
     """Run a job this process claimed, beating its heart; a failure leaves it queued for
     another attempt."""
     try:
         with Heartbeat(db, job_id, worker, stale_after.total_seconds() / 5):
-            run_job(db, job_id)
+            run_job(db, job_id, on_progress, stale_after)
+    except parts.LostClaimError:
+        log.warning("job %s was taken over by another worker; %s stops it", job_id, worker)
     except Exception as exc:
         log.exception("job %s failed", job_id)
         with db.session() as session:

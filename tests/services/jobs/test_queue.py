@@ -53,21 +53,24 @@ def test_a_job_whose_workers_keep_dying_is_given_up(db, session):
     assert failed.status == "failed" and "stopped responding 3 times" in failed.error
 
 
-def test_portfolio_recompute_reports_progress(db, session):
-    for name in ("A", "B", "C"):
-        add_volumetric_history(session, make_field(session, name=name))
-    job = jobs.enqueue_portfolio_recompute(session, reason="test")
-    assert jobs.enqueue_portfolio_recompute(session, reason="twice").id == job.id  # one at a time
-    session.commit()
+def test_portfolio_recompute_reports_progress(real_db):
+    """A real database: the portfolio job's parts run with their heartbeat threads."""
+    db, _ = real_db
+    with db.session() as s:  # and the fixture's Upland
+        for name in ("A", "B", "C"):
+            add_volumetric_history(s, make_field(s, name=name))
+        job = jobs.enqueue_portfolio_recompute(s, reason="test")
+        assert jobs.enqueue_portfolio_recompute(s, reason="twice").id == job.id  # one at a time
+        job_id = job.id
     seen = []
     with db.session() as s:
         jobs.claim_next(s, "w")
-    runner.run_job(db, job.id, on_progress=lambda done, total: seen.append((done, total)))
-    assert seen == [(1, 3), (2, 3), (3, 3)]
-    session.expire_all()
-    view = jobs.get_job(session, job.id)
-    assert view.status == "done" and view.progress_frac == 1.0 and view.finished
-    assert _estimates(session) == 3
+    runner.run_job(db, job_id, on_progress=lambda done, total: seen.append((done, total)))
+    assert seen == [(1, 4), (2, 4), (3, 4), (4, 4)]
+    with db.session() as s:
+        view = jobs.get_job(s, job_id)
+        assert view.status == "done" and view.progress_frac == 1.0 and view.finished
+        assert _estimates(s) == 4
 
 
 def test_the_worker_thread_runs_what_is_queued(real_db):
