@@ -96,7 +96,7 @@ def portfolio_page(
     du = units_for_request(request)
     export = urlencode(query.params())
     suffix = f"?{export}" if export else ""
-    profile = portfolio_profile(rows, yearly_by_field(session, [r.field_id for r in rows]))
+    profile = portfolio_profile(rows, yearly_by_field(session, rows))
     context = {
         "profile": profile,
         "profile_figure": portfolio_profile_figure(profile, du) if profile.years else None,
@@ -166,7 +166,7 @@ def portfolio_xlsx_export(request: Request, session: SessionDep, user: Reader, q
 
 def _profiles(request: Request, session, user, query):
     _, rows, options = selected_rows(session, user, query)
-    years, table = profile_table(rows, yearly_by_field(session, [r.field_id for r in rows]))
+    years, table = profile_table(rows, yearly_by_field(session, rows))
     return years, table, units_for_request(request), describe(query, options), request.app.state.clock()
 
 

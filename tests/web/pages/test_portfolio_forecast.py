@@ -99,3 +99,27 @@ def test_no_forecast_anywhere_says_how_to_get_one(client, db):
         make_field(s, name="Solo")
     page = client.get("/").text
     assert 'id="profile-none"' in page and "when it has a plan" in page
+
+
+def test_many_fields_stack_the_largest_and_one_bar_for_the_rest(client, db):
+    # Fourteen fields at 1..14 MMscf/d: the eleven largest keep their own bars (in the table's
+    # order, by name), the three smallest (1 + 2 + 3 MMscf/d) are one bar; the totals keep all.
+    with db.session() as s:
+        for k in range(1, 15):
+            f = make_field(s, name=f"F{k:02d}")
+            s.flush()
+            s.add(_estimate(f.id, make_forecast(scale=k / 10)))
+    bars = [t for t in _figure(client.get("/").text, "profile-figure")["data"] if t["type"] == "bar"]
+    assert [t["name"] for t in bars] == [f"F{k:02d}" for k in range(4, 15)] + ["3 other fields"]
+    assert bars[-1]["y"][0] == pytest.approx(6 * 0.365)  # (1 + 2 + 3) MMscf/d over 2027
+    assert sum(t["y"][0] for t in bars) == pytest.approx(105 * 0.365)  # every field is in the stack
+
+
+def test_a_recomputed_field_shows_its_new_profile(client, db, portfolio):
+    # Profiles are kept per stored estimate; a recompute writes a new estimate, never reuses one.
+    client.get("/")
+    a = portfolio[0]
+    with db.session() as s:
+        s.add(_estimate(a, make_forecast(scale=3.0)))  # 30 MMscf/d: Alder's newest estimate
+    bars = [t for t in _figure(client.get("/").text, "profile-figure")["data"] if t["type"] == "bar"]
+    assert bars[0]["y"][0] == pytest.approx(3 * 3.65)
