@@ -30,7 +30,7 @@ class FlagThresholds:
     overpressure_gradient_psi_per_ft: float = 0.55  # initial pressure / datum depth
     curvature_p_value: float = 0.01  # significance of the p/z bend
     cole_p_value: float = 0.01  # a Cole plot "rising" by the Cole rule must also be this significant
-    cole_min_change_frac: float = 0.05  # ... and rise by at least this share across the production
+    cole_min_change_frac: float = 0.02  # ... and rise by at least this share across the production
     water_rise_factor: float = 2.0  # late / early water-gas ratio
     water_rise_min_stb_per_mmscf: float = 5.0  # and the late ratio at least this
     well_disagreement_sigma: float = 4.0  # median offset of a well in noise widths

@@ -189,19 +189,26 @@ def _wells_disagree(ev: Evidence) -> list[WellFinding]:
     return [f for f in ev.wells if f.disagrees]
 
 
+def cole_rising(ev: Evidence, th: FlagThresholds) -> bool:
+    """The Cole plot (F/Eg against Gp) rises by the Cole rule, at p below ``cole_p_value`` and by
+    at least ``cole_min_change_frac``: a model-free sign of pressure support (Cole 1969; domain
+    reference §7.2)."""
+    c = ev.cole
+    return bool(
+        c is not None
+        and c.direction == "rising"
+        and c.p_value < th.cole_p_value
+        and c.change_frac >= th.cole_min_change_frac
+    )
+
+
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
     water = _water_rising(ev, th)
     # Without rising water, an aquifer model whose parameters the data do not determine
     # needs a larger margin: a flexible model also bends to the scatter.
     model, gain = _best_other(ev, th, "aquifer_", identifiable=not water) if judge else (None, None)
     c = ev.cole
-    cole = (
-        judge
-        and c is not None
-        and c.direction == "rising"
-        and c.p_value < th.cole_p_value
-        and c.change_frac >= th.cole_min_change_frac
-    )
+    cole = judge and cole_rising(ev, th)
     two, _ = _best_other(ev, th, "two_tank")
     # Rock and water expansion of an overpressured field and a small pot aquifer give the
     # same balance: there only rising water, a rising Cole plot, or a time-dependent

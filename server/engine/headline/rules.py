@@ -28,6 +28,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
+from ..diagnosis.flag_rules import cole_rising
 from ..diagnosis.flags import Flag
 from ..thresholds import FlagThresholds
 from .types import ModelOutcome
@@ -54,9 +55,9 @@ def _gain(diag: Diagnosis, model: str) -> float | None:
 
 def _independent(model: str, ev, th: FlagThresholds) -> bool:
     """Evidence for the mechanism that does not come from the fit itself."""
-    if model in AQUIFERS:
+    if model in AQUIFERS:  # rising water, or a Cole plot that rises without any model
         w = ev.water
-        return bool(
+        return cole_rising(ev, th) or bool(
             w
             and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
             and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
@@ -112,8 +113,8 @@ def automatic_basis(
             return None, "no model has a GIIP and an EUR"
         why = "no mechanism is both flagged and determined by the data"
         return "single_tank", why + ": the straight p/z line"
-    aquifer = [q for q in qualified if q[0].model in AQUIFERS]
-    network = [q for q in qualified if q[0].model in NETWORKS]
+    aquifer = sorted((q for q in qualified if q[0].model in AQUIFERS), key=lambda q: -q[1])
+    network = sorted((q for q in qualified if q[0].model in NETWORKS), key=lambda q: -q[1])
     if aquifer and network and "aquifer_or_compartment" in codes:
         o, gain = min(aquifer[:1] + network[:1], key=lambda q: q[0].giip_bscf)
         return o.model, (
