@@ -130,6 +130,7 @@ def pz_estimate_for(prepared: PreparedData, choices: AnalysisChoices, mode: str)
         random_seed=choices.random_seed,
         groups=[p.well for p in used],
         labels=[p.index for p in used],
+        initial_pz_psia=prepared.initial_pz_psia,
     )
     by_index = {s.index: s for s in est.points}
     statuses = []

@@ -179,6 +179,7 @@ def estimate_pz(
     groups=None,
     labels=None,
     min_depletion_frac: float = MIN_DEPLETION_FRAC,
+    initial_pz_psia: float | None = None,
 ) -> PzEstimate:
     """Fit the (corrected) p/z line and derive GIIP, EUR, RF and remaining gas.
 
@@ -216,6 +217,11 @@ def estimate_pz(
         so those surveys are kept and a note says so.
     labels : sequence of int, optional
         Index reported in each PointStatus (default: position in the arrays).
+    initial_pz_psia : float, optional
+        The field's stated pi/zi [psia]. A survey taken before any production that agrees
+        with it within :data:`RECORD_SIGMA` residual widths is never set aside as an
+        outlier: the record corroborates it, and a line that misses it (aquifer support
+        flattens the later p/z) is the wrong model, not a bad reading.
 
     Returns
     -------
@@ -265,6 +271,13 @@ def estimate_pz(
     outliers = ()
     if screen_outliers:
         keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, notes)
+        held = _corroborated(x, y, w, keep, fit_subset, initial_pz_psia)
+        if held is not None:
+            keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, [], held)
+            notes.append(
+                "The survey before production agrees with the stated initial pressure: kept in the "
+                "line although it lies off it (the rule sets aside bad readings, not the initial state)."
+            )
     fit = fit_subset(keep)
     a, b, ce = fit.phi
     _refuse_unless_declining(fit, x[keep], anchored, confidence_level, min_depletion_frac)
@@ -358,7 +371,27 @@ def estimate_pz(
     )
 
 
-def _screen(x, y, w, d, anchor, ce, groups, need, notes):
+#: Residual widths within which a survey before production agrees with the stated pi/zi
+#: (the diagnosis' own ``outlier_sigma``; common practice, not a published value).
+RECORD_SIGMA = 4.0
+
+
+def _corroborated(x, y, w, keep, fit_subset, initial_pz_psia) -> np.ndarray | None:
+    """Surveys before production [Gp = 0] that the screen set aside although they lie within
+    :data:`RECORD_SIGMA` residual widths of the stated pi/zi [psia]; None when there are none."""
+    if initial_pz_psia is None or keep.all():
+        return None
+    early = (~keep) & (x <= 1e-6)
+    if not early.any():
+        return None
+    sigma = fit_subset(keep).lin.sigma
+    if not (np.isfinite(sigma) and sigma > 0):
+        return None
+    agree = early & (np.abs(y - initial_pz_psia) * np.sqrt(w) <= RECORD_SIGMA * sigma)
+    return agree if agree.any() else None
+
+
+def _screen(x, y, w, d, anchor, ce, groups, need, notes, held=None):
 
     design, offset = screen_design(x, y, w, d, anchor=anchor, ce=ce)
     fits = linear_subset_fits(design, y, w, offset)
@@ -374,7 +407,7 @@ def _screen(x, y, w, d, anchor, ce, groups, need, notes):
             protected=protected,
         )
 
-    screen = run(None)
+    screen = run(held)
     if groups is not None and screen.outliers:
         g = np.asarray(groups, dtype=object)
         found = g[[o.index for o in screen.outliers]]
@@ -385,7 +418,7 @@ def _screen(x, y, w, d, anchor, ce, groups, need, notes):
                     f"{int(np.sum(found == k))} surveys of well {k} lie off the line together: kept in the "
                     "fit, not treated as isolated gauge errors (a compartment or a gauge offset?)."
                 )
-            screen = run(np.isin(g, wells))
+            screen = run(np.isin(g, wells) if held is None else np.isin(g, wells) | held)
     if screen.stopped_reason:
         notes.append("Outlier screening: " + screen.stopped_reason + ".")
     return screen.keep, screen.outliers

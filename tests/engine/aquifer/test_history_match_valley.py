@@ -56,8 +56,10 @@ def test_valley_fit_reaches_the_optimum_of_the_plain_fit_run_to_tight_convergenc
     assert fit.params["influx_frac_of_gas_pv"] == pytest.approx(
         tight.params["influx_frac_of_gas_pv"], abs=0.01
     )
-    # Before: 12, 17 and 30 (the cap, not converged) solves; now well under the cap.
-    assert run.nfev <= 15, run.nfev
+    # Before: 12, 17 and 30 (the cap, not converged) solves; now well under the cap. The count
+    # depends on the machine's floating-point paths: 15 at most on 2026-12-03's machine, 19 on the
+    # volumetric field on 2026-12-04's (same code and lock file).
+    assert run.nfev <= 20, run.nfev
 
 
 def test_valley_coordinates_map_to_the_same_model(field):

@@ -34,10 +34,13 @@ def test_a_survey_the_producers_line_explains_is_not_an_outlier():
 def test_surveys_the_best_model_explains_are_not_outliers():
     # Seed 2: before engine 0.6.4 the aquifer field's initial survey (121 psia above a line
     # flattened by influx, 5 noise widths) was reported as "Surveys off the trend"
-    # (bench_accuracy, 2026-12-03). The two-tank case is test_forward.py's seed 5.
+    # (bench_accuracy, 2026-12-03). The two-tank case is test_forward.py's seed 5. Since engine
+    # 0.6.5 the line keeps it (it agrees with the stated initial pressure), and says so.
     inputs = CASE_BY_NAME["strong_aquifer_water"].build(2).inputs
     result = analyse_field(inputs)
-    assert [p.status for p in result.pz.points].count("outlier") >= 1  # the line still sets it aside
+    first = int(np.argmin(np.asarray(inputs.survey_t_days)))
+    assert result.pz.points[first].status == "used"
+    assert any("stated initial pressure" in n for n in result.pz.notes)
     assert "data_outliers" not in _codes(result)
 
 

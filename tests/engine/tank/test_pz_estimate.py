@@ -143,6 +143,28 @@ def test_outlier_is_set_aside_with_a_reason_and_reported():
     assert estimate_pz(gp, y, screen_outliers=False, **kw).n_outliers == 0
 
 
+def test_a_survey_before_production_that_matches_the_stated_initial_pz_is_kept():
+    # A line whose later points sag below it (as aquifer support flattens the p/z of later
+    # surveys): the initial survey at Gp = 0 lies 160 psia above the line through the rest.
+    # Given the stated pi/zi it agrees with, it stays in the fit; a reading 160 psia off the
+    # stated value is a bad reading and is set aside as before (common practice: the initial
+    # pressure is the best-documented pressure of a field).
+    rng = np.random.default_rng(5)
+    gp = np.linspace(0, 45, 14)
+    y = 4840.0 * (1 - gp / 110.0) + rng.normal(0, 12.0, 14)
+    y[0] = 5000.0 + 8.0
+    kw = {"abandonment_pz_psia": 1000.0, "cumulative_gas_bscf": 45.0, "random_seed": 1}
+    plain = estimate_pz(gp, y, **kw)
+    assert plain.points[0].status == "outlier"
+    kept = estimate_pz(gp, y, initial_pz_psia=5000.0, **kw)
+    assert kept.points[0].status == "used" and kept.n_outliers == 0
+    assert any("stated initial pressure" in n for n in kept.notes)
+    b, a = np.polyfit(gp, y, 1)  # the ordinary least-squares line through all 14 (numpy)
+    assert kept.giip_bscf == pytest.approx(-a / b, rel=1e-10)
+    wrong = estimate_pz(gp, y, initial_pz_psia=4840.0, **kw)  # the record says 168 psia lower
+    assert wrong.points[0].status == "outlier"
+
+
 def test_several_bad_surveys_of_one_well_are_kept_as_evidence():
     gp = np.linspace(0, 45, 16)
     rng = np.random.default_rng(4)
