@@ -37,6 +37,7 @@ from ..aquifer.extend import WATERED_OUT_PV_FRAC
 from ..modelfit import HORIZON_YEARS
 from ..plan import FieldPlan
 from .deliverability import potential_mscf_per_day
+from .month_rate import MonthSeed, month_rate_mscf_per_day
 from .steppers import Stepper
 from .types import Deliverability, Profile, WaterRule
 from .water import monthly_water_stb
@@ -97,22 +98,6 @@ def _field_rate(s: CaseSettings, t_a: float, t_b: float):
     return rate, pwf
 
 
-def _month_rate(stepper: Stepper, rate, pwf: float, days: float, wet: float) -> float:
-    """The month's rate q [Mscf/d] with q = rate((p_start + p_end(q))/2), p_end never below p_wf."""
-    p0 = stepper.p_psia
-
-    def p_end(q):
-        return stepper.trial(q * days * wet, days)
-
-    q_hi = rate(p0)
-    q = q_hi
-    if q_hi > 0 and rate(0.5 * (p0 + p_end(q_hi))) < q_hi:
-        q = brentq(lambda x: x - rate(0.5 * (p0 + p_end(x))), 0.0, q_hi, xtol=1e-9 * q_hi, rtol=1e-10)
-    if q > 0 and p_end(q) < pwf:  # the mid-point rate overshot: the wells cannot draw the tank below p_wf
-        q = brentq(lambda x: p_end(x) - pwf, 0.0, q, xtol=1e-9 * q)
-    return q
-
-
 def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> Profile:
     """The monthly profile of one case (low, best or high) from the stepper's state."""
     plan = s.plan
@@ -121,6 +106,7 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
     wet = s.wet_per_sep * 1e3  # scf of model gas per Mscf of separator gas
     rows: list[tuple[float, float, float, float]] = []  # month end, rate, gas [Mscf], pressure
     t_a, reason, end_t = s.t_last_days, "horizon", None
+    seed = MonthSeed()
     for t_b in s.month_ends_t_days:
         if licence is not None and licence <= t_a + 1e-9:
             reason, end_t = "licence end", t_a
@@ -133,7 +119,7 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
             break
         days = min(t_b, licence) - t_a if licence is not None else t_b - t_a
         rate, pwf = _field_rate(s, t_a, t_b)
-        q = _month_rate(stepper, rate, pwf, days, wet)
+        q = month_rate_mscf_per_day(stepper, rate, pwf, days, wet, seed)
         if q <= 0 or q < plan.economic_limit_mscf_per_day:
             reason, end_t = "economic limit", t_a
             break
