@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from bisect import bisect_right
 
 import numpy as np
 
@@ -86,10 +87,14 @@ class AquiferStepper(Stepper):
         state = self.solver.solve(g, pi, self.kernel[:n_hist])
         if not state.converged:
             raise InsufficientDataError("the aquifer model's history could not be solved on monthly steps")
-        self.spec, self.g, self.pi, self.table = spec, g, pi, grid.table
-        self.ce = grid.ce_per_psi
-        self.gpv = self.solver.gas_pore_volume_rb(g, pi)
-        self.coef0 = next(c for off, c in spec.influx.bands if off == 0)
+        self.spec, self.g, self.pi, self.table = spec, float(g), float(pi), grid.table
+        self.ce = float(grid.ce_per_psi)
+        # The table as lists for scalar lookups in the monthly solve (np.interp's formula).
+        tab = grid.table
+        self._tp, self._tphi, self._tdphi = tab.p.tolist(), tab.phi.tolist(), tab.dphi.tolist()
+        self.pz_i = float(grid.table.pz(pi))
+        self.gpv = float(self.solver.gas_pore_volume_rb(g, pi))
+        self.coef0 = float(next(c for off, c in spec.influx.bands if off == 0))
         self.p_hist = list(state.p_psia)
         self.drops = list(spec.influx.drops(pi, state.p_psia))
         self.wp_rb = float(wp[-1])
@@ -113,27 +118,38 @@ class AquiferStepper(Stepper):
             self._known = (n, past, d0)
         return self._known[1], self._known[2]
 
+    def _interp(self, p: float, f: list) -> float:
+        """f(p) linear between the table's nodes, clamped at its ends: np.interp for one scalar."""
+        xp = self._tp
+        j = bisect_right(xp, p) - 1
+        if j < 0:
+            return f[0]
+        if j >= len(xp) - 1:
+            return f[-1]
+        return (f[j + 1] - f[j]) / (xp[j + 1] - xp[j]) * (p - xp[j]) + f[j]
+
     def _solve(self, gas_scf: float) -> tuple[float, float]:
         """(p [psia], W_e [rb]) at the end of the next step."""
         past, d0 = self._known_influx()
-        k0, tab = float(self.kernel[0]), self.table
-        pz_i = float(tab.pz(self.pi))
+        k0, coef0, gpv, ce, pi = float(self.kernel[0]), self.coef0, self.gpv, self.ce, self.pi
+        pz_i = self.pz_i
+        p_lo, p_hi = self._tp[0], self._tp[-1]
         wp = self.wp_rb + self.wgr_rb_per_scf * gas_scf
         rhs = 1.0 - (self.gp_scf + gas_scf) / self.g
         p = self.p_psia
         for _ in range(40):
-            we = past + k0 * (d0 + self.coef0 * p)
-            u = float(tab.pz(p)) / pz_i
-            d = 1.0 - self.ce * (self.pi - p) - (we - wp) / self.gpv
+            we = past + k0 * (d0 + coef0 * p)
+            u = self._interp(p, self._tphi) / pz_i
+            d = 1.0 - ce * (pi - p) - (we - wp) / gpv
             f = u * d - rhs
-            df = float(tab.dpz(p)) / pz_i * d + u * (self.ce - k0 * self.coef0 / self.gpv)
+            df = self._interp(p, self._tdphi) / pz_i * d + u * (ce - k0 * coef0 / gpv)
             step = -f / df if df > 0 else -f
-            p_new = min(max(p + step, float(tab.p[0])), float(tab.p[-1]))
+            p_new = min(max(p + step, p_lo), p_hi)
             if abs(p_new - p) < _NEWTON_TOL_PSI:
                 p = p_new
                 break
             p = p_new
-        return p, past + k0 * (d0 + self.coef0 * p)
+        return p, past + k0 * (d0 + coef0 * p)
 
     def _pressure_after(self, gas_scf: float, dt_days: float) -> float:
         return self._solve(gas_scf)[0]

@@ -104,7 +104,7 @@ def month_rate_mscf_per_day(
 def _solve(excess, q_hi: float, guess: float | None, slope: float) -> tuple[float, float]:
     """The root of the increasing ``excess`` in [0, q_hi] (q_hi when excess(q_hi) <= 0)."""
     tol = RATE_RTOL * q_hi
-    lo, hi, f_lo, f_hi = 0.0, q_hi, None, None  # excess(0) <= 0; excess(q_hi) not yet known
+    lo, hi, f_hi = 0.0, q_hi, None  # excess(0) <= 0; excess(q_hi) not yet known
     x = guess if guess is not None and 0.0 < guess < q_hi else q_hi
     s = slope if slope >= 1.0 and math.isfinite(slope) else 1.0
     x_prev = f_prev = None
@@ -117,7 +117,7 @@ def _solve(excess, q_hi: float, guess: float | None, slope: float) -> tuple[floa
         if fx > 0.0:
             hi, f_hi = x, fx
         else:
-            lo, f_lo = x, fx
+            lo = x
         if x_prev is not None and x != x_prev:
             s_new = (fx - f_prev) / (x - x_prev)
             if s_new > 0.0:

@@ -23,20 +23,8 @@ from bisect import bisect_right
 import numpy as np
 
 from ..aquifer.tank_solver import PzTable
+from ..aquifer.tank_solver import field_pz_table as field_pz_table  # the steppers' p/z table
 from ..errors import InsufficientDataError
-from ..inputs import FieldInputs
-from ..prepare.points import PreparedData, field_z_function
-
-
-def field_pz_table(inputs: FieldInputs, prepared: PreparedData) -> PzTable:
-    """p/z against p for the field's own z source (as the aquifer solver builds it)."""
-    z_of_p, _, _ = field_z_function(inputs, prepared.fluid or inputs.fluid, [])
-    return PzTable(
-        z_of_p,
-        inputs.reservoir_temperature_degF,
-        1.35 * inputs.initial_pressure_psia,
-        inputs.standard_conditions,
-    )
 
 
 class Stepper:
