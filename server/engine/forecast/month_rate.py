@@ -63,7 +63,7 @@ def month_rate_mscf_per_day(
     wet: float,
     seed: MonthSeed | None = None,
 ) -> float:
-    """(q [Mscf/d], the last slope of F) with q = rate((p_start + p_end(q))/2), p_end >= p_wf.
+    """The month's rate q [Mscf/d] with q = rate((p_start + p_end(q))/2), p_end never below p_wf.
 
     Parameters
     ----------

@@ -27,6 +27,7 @@ Volumes are separator gas [Bscf]; the model withdraws the wet-gas equivalent (``
 from __future__ import annotations
 
 import datetime as dt
+from bisect import bisect_right
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -115,7 +116,7 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
     rows: list[tuple[float, float, float, float]] = []  # month end, rate, gas [Mscf], pressure
     t_a, reason, end_t = s.t_last_days, "horizon", None
     seed = MonthSeed()
-    starts = [start for _, start in s.wells]
+    starts = sorted(start for _, start in s.wells)
     rates = {}  # (p_wf, wells on stream) -> the month's rate function; wells only come on stream
     for t_b in s.month_ends_t_days.tolist():  # floats: numpy scalars would slow every step
         if licence is not None and licence <= t_a + 1e-9:
@@ -129,7 +130,7 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
             break
         days = min(t_b, licence) - t_a if licence is not None else t_b - t_a
         pwf, t_mid = s.pwf_psia(t_a), t_a + 0.5 * (t_b - t_a)
-        key = (pwf, sum(1 for start in starts if start <= t_mid))
+        key = (pwf, bisect_right(starts, t_mid))  # how many wells are on stream
         rate = rates.get(key)
         if rate is None:
             rate = rates[key] = _field_rate(s, pwf, s.active(t_mid))
