@@ -37,21 +37,19 @@ class MonthSeed:
     """
 
     def __init__(self):
-        self.g = []  # the last months' g [1/day], newest last
+        self.g1 = self.g2 = None  # the last and the previous month's g [1/day]
         self.slope = 1.0  # the last month's slope of F
 
     def guess(self, q_hi: float, days: float) -> float | None:
-        g = self.g
-        if not g or not q_hi > 0:
+        g1, g2 = self.g1, self.g2
+        if g1 is None:
             return None
-        nxt = 2.0 * g[-1] - g[-2] if len(g) > 1 else g[-1]
-        return q_hi / (1.0 + max(nxt, 0.0) * days)
+        nxt = g1 if g2 is None else 2.0 * g1 - g2
+        return q_hi / (1.0 + nxt * days) if nxt > 0.0 else q_hi
 
     def update(self, q: float, q_hi: float, days: float, slope: float) -> None:
-        if q > 0 and q_hi > 0 and days > 0:
-            self.g = [*self.g[-1:], (q_hi / q - 1.0) / days]
-        else:
-            self.g = []
+        g = (q_hi / q - 1.0) / days if q > 0.0 and days > 0.0 else None
+        self.g1, self.g2 = g, self.g1 if g is not None else None
         self.slope = slope
 
 
@@ -78,13 +76,10 @@ def month_rate_mscf_per_day(
     seed : MonthSeed, optional
         Where to start, from the last months (updated with this month's solve).
     """
-    p0 = stepper.p_psia
+    p0, trial = stepper.p_psia, stepper.trial
 
-    def p_end(q):
-        return stepper.trial(q * days * wet, days)
-
-    def excess(q):
-        return q - rate(0.5 * (p0 + p_end(q)))
+    def excess(q):  # the withdrawal q days wet is the profile's own product, so trials are reused
+        return q - rate(0.5 * (p0 + trial(q * days * wet, days)))
 
     q_hi = rate(p0)
     if not q_hi > 0:
@@ -96,8 +91,8 @@ def month_rate_mscf_per_day(
     else:
         q, slope = _solve(excess, q_hi, seed.guess(q_hi, days), seed.slope)
         seed.update(q, q_hi, days, slope)
-    if q > 0 and p_end(q) < pwf_psia:  # the mid-point rate overshot: the wells cannot draw below p_wf
-        q = brentq(lambda x: p_end(x) - pwf_psia, 0.0, q, xtol=1e-9 * q)
+    if q > 0 and trial(q * days * wet, days) < pwf_psia:  # the mid-point rate overshot: not below p_wf
+        q = brentq(lambda x: trial(x * days * wet, days) - pwf_psia, 0.0, q, xtol=1e-9 * q)
     return q
 
 
