@@ -9,7 +9,7 @@ step's drop, which is linear in the new pressure, so the balance
     u(p) [1 − c_e (p_i − p) − (W_e(p) − W_p)/(G B_gi)] = 1 − G_p/G
 
 is one scalar equation per month (Newton's method). Marching reproduces the whole-history
-Newton solve of the same grid (tests/engine/forecast/test_steppers.py). The influx clock
+Newton solve of the same grid (tests/engine/forecast/test_aquifer_forecast.py). The influx clock
 advances one average month per calendar month (a calendar month differs from it by at
 most 2.4 days, and the two clocks never drift more than about 1.5 days apart).
 
