@@ -107,6 +107,43 @@ def interpolation_matrix(x, knots) -> np.ndarray:
     return a
 
 
+#: The last p/z table built: (what it was built from, the lab table, the table).
+_last_table: tuple = (None, None, None)
+
+
+def field_pz_table(inputs: FieldInputs, prepared: PreparedData) -> PzTable:
+    """p/z against p for the field's own z source, up to 1.35 p_i (read-only, shared).
+
+    The same z as the prepared points: the lab table or the correlation for the (well-stream)
+    gas that prepare used. The history match and the forecast ask for the same table, so the
+    last one is kept and returned while the z source, temperature, p_i and standard
+    conditions are the same (equal values; the same lab table object)."""
+    global _last_table
+    fluid, ch = prepared.fluid or inputs.fluid, inputs.choices
+    key = (
+        fluid,
+        ch.z_method,
+        ch.use_lab_table,
+        inputs.reservoir_temperature_degF,
+        inputs.initial_pressure_psia,
+        inputs.standard_conditions,
+    )
+    last_key, last_lab, last = _last_table
+    if last is not None and last_lab is inputs.lab_table and last_key == key:
+        return last
+    z_of_p, _, _ = field_z_function(inputs, fluid, [])
+    table = PzTable(
+        z_of_p,
+        inputs.reservoir_temperature_degF,
+        1.35 * inputs.initial_pressure_psia,
+        inputs.standard_conditions,
+    )
+    for value in (table.p, table.z, table.phi, table.dphi):  # shared: an in-place change would raise
+        value.flags.writeable = False
+    _last_table = (key, inputs.lab_table, table)
+    return table
+
+
 #: The last grid built, with the objects it was built from: a field's analysis asks for the
 #: same grid once for the history match and once per fitted model stepped past the history.
 _last_grid: tuple = (None, None, None, None)
@@ -150,15 +187,7 @@ def _build_tank_grid(inputs: FieldInputs, prepared: PreparedData, bw_rb_per_stb:
     if produced_water_is_liquid(inputs):
         wp_grid = cumulative_at_times(t0 + t, ends, water) * bw_rb_per_stb
         wp_obs = cumulative_at_times(obs_abs, ends, water) * bw_rb_per_stb
-    # The same z as the prepared points: the lab table or the correlation for the (well-stream)
-    # gas that prepare used. prepare has no public name for it yet.
-    z_of_p, _, _ = field_z_function(inputs, prepared.fluid or inputs.fluid, [])
-    table = PzTable(
-        z_of_p,
-        inputs.reservoir_temperature_degF,
-        1.35 * inputs.initial_pressure_psia,
-        inputs.standard_conditions,
-    )
+    table = field_pz_table(inputs, prepared)
     obs_t = obs_abs - t0
     return TankGrid(
         t_start_days=t0,

@@ -9,7 +9,7 @@ step's drop, which is linear in the new pressure, so the balance
     u(p) [1 − c_e (p_i − p) − (W_e(p) − W_p)/(G B_gi)] = 1 − G_p/G
 
 is one scalar equation per month (Newton's method). Marching reproduces the whole-history
-Newton solve of the same grid (tests/engine/forecast/test_steppers.py). The influx clock
+Newton solve of the same grid (tests/engine/forecast/test_aquifer_forecast.py). The influx clock
 advances one average month per calendar month (a calendar month differs from it by at
 most 2.4 days, and the two clocks never drift more than about 1.5 days apart).
 
@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from bisect import bisect_right
 
 import numpy as np
 
@@ -86,12 +87,19 @@ class AquiferStepper(Stepper):
         state = self.solver.solve(g, pi, self.kernel[:n_hist])
         if not state.converged:
             raise InsufficientDataError("the aquifer model's history could not be solved on monthly steps")
-        self.spec, self.g, self.pi, self.table = spec, g, pi, grid.table
-        self.ce = grid.ce_per_psi
-        self.gpv = self.solver.gas_pore_volume_rb(g, pi)
-        self.coef0 = next(c for off, c in spec.influx.bands if off == 0)
+        self.spec, self.g, self.pi, self.table = spec, float(g), float(pi), grid.table
+        self.ce = float(grid.ce_per_psi)
+        # The table as lists for scalar lookups in the monthly solve (np.interp's formula).
+        tab = grid.table
+        self._tp, self._tphi, self._tdphi = tab.p.tolist(), tab.phi.tolist(), tab.dphi.tolist()
+        self.pz_i = float(grid.table.pz(pi))
+        self.gpv = float(self.solver.gas_pore_volume_rb(g, pi))
+        self.coef0 = float(next(c for off, c in spec.influx.bands if off == 0))
         self.p_hist = list(state.p_psia)
-        self.drops = list(spec.influx.drops(pi, state.p_psia))
+        # The pressure drops of every step so far, in a buffer the kernel's length (no list to convert).
+        self._drops = np.zeros(self.kernel.size)
+        self._drops[:n_hist] = spec.influx.drops(pi, state.p_psia)
+        self.k0 = float(self.kernel[0])
         self.wp_rb = float(wp[-1])
         self.invaded_frac = float((state.we_rb[-1] - self.wp_rb) / self.gpv)
         # Water follows gas at the recent ratio [rb per scf of model gas].
@@ -107,33 +115,51 @@ class AquiferStepper(Stepper):
         if self._known is None or self._known[0] != n:
             if n >= self.kernel.size:
                 raise InsufficientDataError("the forecast ran past the aquifer kernel's length")
-            past = float(np.dot(self.kernel[n:0:-1], self.drops)) if n else 0.0
+            past = float(np.dot(self.kernel[n:0:-1], self._drops[:n])) if n else 0.0
             tail = ([self.pi, self.pi] + self.p_hist[-2:])[-2:]
             d0 = float(self.spec.influx.drops(self.pi, np.array([*tail, 0.0]))[-1])
             self._known = (n, past, d0)
         return self._known[1], self._known[2]
 
+    def _pz_dpz(self, p: float) -> tuple[float, float]:
+        """(p/z [psia], d(p/z)/dp [-]) at p [psia] by np.interp's formula on the table, for one scalar."""
+        xp, phi, dphi = self._tp, self._tphi, self._tdphi
+        j = bisect_right(xp, p) - 1
+        if j < 0:
+            return phi[0], dphi[0]
+        if j >= len(xp) - 1:
+            return phi[-1], dphi[-1]
+        h, t = xp[j + 1] - xp[j], p - xp[j]
+        return (phi[j + 1] - phi[j]) / h * t + phi[j], (dphi[j + 1] - dphi[j]) / h * t + dphi[j]
+
     def _solve(self, gas_scf: float) -> tuple[float, float]:
         """(p [psia], W_e [rb]) at the end of the next step."""
         past, d0 = self._known_influx()
-        k0, tab = float(self.kernel[0]), self.table
-        pz_i = float(tab.pz(self.pi))
+        k0, coef0, gpv, ce, pi = self.k0, self.coef0, self.gpv, self.ce, self.pi
+        pz_i = self.pz_i
+        p_lo, p_hi = self._tp[0], self._tp[-1]
         wp = self.wp_rb + self.wgr_rb_per_scf * gas_scf
         rhs = 1.0 - (self.gp_scf + gas_scf) / self.g
-        p = self.p_psia
+        # Newton from the last trial of the step, else from the last step's drop carried on.
+        last, hist = self._last, self.p_hist
+        if last is not None:
+            p = last[2]
+        else:
+            p = min(max(2.0 * hist[-1] - hist[-2], p_lo), p_hi) if len(hist) > 1 else self.p_psia
         for _ in range(40):
-            we = past + k0 * (d0 + self.coef0 * p)
-            u = float(tab.pz(p)) / pz_i
-            d = 1.0 - self.ce * (self.pi - p) - (we - wp) / self.gpv
+            we = past + k0 * (d0 + coef0 * p)
+            pz, dpz = self._pz_dpz(p)
+            u = pz / pz_i
+            d = 1.0 - ce * (pi - p) - (we - wp) / gpv
             f = u * d - rhs
-            df = float(tab.dpz(p)) / pz_i * d + u * (self.ce - k0 * self.coef0 / self.gpv)
+            df = dpz / pz_i * d + u * (ce - k0 * coef0 / gpv)
             step = -f / df if df > 0 else -f
-            p_new = min(max(p + step, float(tab.p[0])), float(tab.p[-1]))
+            p_new = min(max(p + step, p_lo), p_hi)
             if abs(p_new - p) < _NEWTON_TOL_PSI:
                 p = p_new
                 break
             p = p_new
-        return p, past + k0 * (d0 + self.coef0 * p)
+        return p, past + k0 * (d0 + coef0 * p)
 
     def _pressure_after(self, gas_scf: float, dt_days: float) -> float:
         return self._solve(gas_scf)[0]
@@ -144,10 +170,10 @@ class AquiferStepper(Stepper):
         return (we - self.wp_rb - self.wgr_rb_per_scf * gas_scf) / self.gpv
 
     def _advance(self, gas_scf: float, dt_days: float, p_psia: float) -> None:
-        _, d0 = self._known_influx()
-        p, we = self._solve(gas_scf)
+        past, d0 = self._known_influx()
+        p, we = p_psia, past + self.k0 * (d0 + self.coef0 * p_psia)  # p_psia is _solve(gas_scf)'s
         self.wp_rb += self.wgr_rb_per_scf * gas_scf
         self.invaded_frac = (we - self.wp_rb) / self.gpv
+        self._drops[len(self.p_hist)] = d0 + self.coef0 * p
         self.p_hist.append(p)
-        self.drops.append(d0 + self.coef0 * p)
         self._known = None

@@ -27,6 +27,7 @@ Volumes are separator gas [Bscf]; the model withdraws the wet-gas equivalent (``
 from __future__ import annotations
 
 import datetime as dt
+from bisect import bisect_right
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -37,6 +38,7 @@ from ..aquifer.extend import WATERED_OUT_PV_FRAC
 from ..modelfit import HORIZON_YEARS
 from ..plan import FieldPlan
 from .deliverability import potential_mscf_per_day
+from .month_rate import MonthSeed, month_rate_mscf_per_day
 from .steppers import Stepper
 from .types import Deliverability, Profile, WaterRule
 from .water import monthly_water_stb
@@ -46,13 +48,9 @@ _EPOCH = dt.date(1970, 1, 1)
 
 def month_ends_t_days(t_last_days: float, years: float = HORIZON_YEARS) -> np.ndarray:
     """First days of the months after ``t_last_days`` (exclusive month ends) [days since 1970]."""
-    d = _EPOCH + dt.timedelta(days=int(np.floor(t_last_days + 1e-9)))
-    y, m = d.year, d.month
-    out = []
-    for _ in range(int(round(years * 12))):
-        y, m = (y + 1, 1) if m == 12 else (y, m + 1)
-        out.append(float((dt.date(y, m, 1) - _EPOCH).days))
-    return np.array(out)
+    day = np.datetime64(int(np.floor(t_last_days + 1e-9)), "D")
+    months = day.astype("datetime64[M]") + np.arange(1, int(round(years * 12)) + 1)
+    return months.astype("datetime64[D]").astype(np.int64).astype(float)
 
 
 @dataclass(frozen=True)
@@ -83,34 +81,30 @@ class CaseSettings:
         return tuple((d.c_mscf_per_day_psi2n, d.n, d.form) for d, start in self.wells if start <= t_days)
 
 
-def _field_rate(s: CaseSettings, t_a: float, t_b: float):
+def _field_rate(s: CaseSettings, pwf: float, wells):
     """q(p̄) = U min(plateau, Σ C (p̄² − p_wf²)^n) of the wells on stream in the month [Mscf/d]."""
-    pwf = s.pwf_psia(t_a)
-    wells = s.active(t_a + 0.5 * (t_b - t_a))
     u, plateau = s.plan.uptime_frac, s.plan.plateau_rate_mscf_per_day
     m_of_p = s.pseudo_pressure
+    if m_of_p is not None and any(form == "pseudo_pressure" for _, _, form in wells):
 
-    def rate(p_mid: float) -> float:
-        d = potential_mscf_per_day(wells, p_mid, pwf, m_of_p)
+        def rate(p_mid: float) -> float:
+            d = potential_mscf_per_day(wells, p_mid, pwf, m_of_p)
+            return u * (d if plateau is None else min(plateau, d))
+
+        return rate
+    # All in the p² form: potential_mscf_per_day's sum, in the same order, without its checks.
+    cn, pwf2 = tuple((c, n) for c, n, _ in wells), pwf * pwf
+
+    def rate_p2(p_mid: float) -> float:
+        x = p_mid * p_mid - pwf2
+        if x <= 0.0:
+            return 0.0
+        d = 0.0
+        for c, n in cn:
+            d += c * x**n
         return u * (d if plateau is None else min(plateau, d))
 
-    return rate, pwf
-
-
-def _month_rate(stepper: Stepper, rate, pwf: float, days: float, wet: float) -> float:
-    """The month's rate q [Mscf/d] with q = rate((p_start + p_end(q))/2), p_end never below p_wf."""
-    p0 = stepper.p_psia
-
-    def p_end(q):
-        return stepper.trial(q * days * wet, days)
-
-    q_hi = rate(p0)
-    q = q_hi
-    if q_hi > 0 and rate(0.5 * (p0 + p_end(q_hi))) < q_hi:
-        q = brentq(lambda x: x - rate(0.5 * (p0 + p_end(x))), 0.0, q_hi, xtol=1e-9 * q_hi, rtol=1e-10)
-    if q > 0 and p_end(q) < pwf:  # the mid-point rate overshot: the wells cannot draw the tank below p_wf
-        q = brentq(lambda x: p_end(x) - pwf, 0.0, q, xtol=1e-9 * q)
-    return q
+    return rate_p2
 
 
 def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> Profile:
@@ -121,7 +115,10 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
     wet = s.wet_per_sep * 1e3  # scf of model gas per Mscf of separator gas
     rows: list[tuple[float, float, float, float]] = []  # month end, rate, gas [Mscf], pressure
     t_a, reason, end_t = s.t_last_days, "horizon", None
-    for t_b in s.month_ends_t_days:
+    seed = MonthSeed()
+    starts = sorted(start for _, start in s.wells)
+    rates = {}  # (p_wf, wells on stream) -> the month's rate function; wells only come on stream
+    for t_b in s.month_ends_t_days.tolist():  # floats: numpy scalars would slow every step
         if licence is not None and licence <= t_a + 1e-9:
             reason, end_t = "licence end", t_a
             break
@@ -132,8 +129,12 @@ def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> 
             reason, end_t = "watered out", t_a
             break
         days = min(t_b, licence) - t_a if licence is not None else t_b - t_a
-        rate, pwf = _field_rate(s, t_a, t_b)
-        q = _month_rate(stepper, rate, pwf, days, wet)
+        pwf, t_mid = s.pwf_psia(t_a), t_a + 0.5 * (t_b - t_a)
+        key = (pwf, bisect_right(starts, t_mid))  # how many wells are on stream
+        rate = rates.get(key)
+        if rate is None:
+            rate = rates[key] = _field_rate(s, pwf, s.active(t_mid))
+        q = month_rate_mscf_per_day(stepper, rate, pwf, days, wet, seed)
         if q <= 0 or q < plan.economic_limit_mscf_per_day:
             reason, end_t = "economic limit", t_a
             break
