@@ -221,7 +221,15 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
         and (ce is None or ce.aicc - model.aicc >= th.comparable_delta_aicc)
     )
     explained_by_overpressure = _overpressured(ev, th) and not cole and not beats_ce
-    explained_by_compartments = bool(_wells_disagree(ev)) or (two is not None and model is None)
+    # Compartments divide the mapped volume and do not add to it: a neighbour tank whose total
+    # lies above the volumetric high case does not explain the support better than an aquifer.
+    vol = ev.volumetric
+    beyond_map = (
+        two is not None and vol is not None and two.giip_bscf is not None and two.giip_bscf > vol.p10_bscf
+    )
+    explained_by_compartments = bool(_wells_disagree(ev)) or (
+        two is not None and model is None and not beyond_map
+    )
     if not water and not (
         (model or cole) and not explained_by_overpressure and not explained_by_compartments
     ):

@@ -146,6 +146,20 @@ def test_cole_trend_alone_raises_the_aquifer_flag_unless_compartments_explain_it
     assert codes(_ev(cole=cole, wells=(odd,))) == ["compartment_signature"]
 
 
+def test_a_neighbour_tank_larger_than_the_map_does_not_explain_away_a_rising_cole_plot():
+    # A rising Cole plot and a preferred two-tank model (GIIP 90 Bscf in _comparison) with no
+    # aquifer model comparable: a neighbour tank inside the mapped volume explains the support,
+    # so only the compartment flag is raised. Compartments divide the mapped volume and never
+    # add to it (common practice), so when the two tanks hold more than the volumetric high
+    # case the aquifer stays a candidate: one "aquifer or compartment" flag instead.
+    cole = ColeTrend("rising", 20, 0.3, 0.05, 90.0, 6.0, 1e-4, 0.15, (0.1, 0.2))
+    cmp = _comparison(two_tank=1000.0)
+    assert codes(_ev(cole=cole, comparison=cmp)) == ["compartment_signature"]
+    small_map = volumetric_range(60.0, 70.0, 80.0)  # P10 80 Bscf < the two tanks' 90 Bscf
+    found = codes(_ev(cole=cole, comparison=cmp, volumetric=small_map))
+    assert "aquifer_or_compartment" in found and "compartment_signature" not in found
+
+
 def test_overpressure_and_pot_aquifer_are_not_confused():
     # An overpressured field: the compressibility model and a pot aquifer fit alike.
     cmp = _comparison(tank_ce=1500.0, aquifer_pot=1500.0)
