@@ -9,12 +9,11 @@ differences.
 from __future__ import annotations
 
 import numpy as np
-from scipy.linalg import solve_triangular
 
 from .dimensionless import influx_table
 from .influx import causal_convolution
 from .models import AquiferModelSpec, KernelCache
-from .tank_solver import TankGrid, TankSolver
+from .tank_solver import TankGrid, TankSolver, solve_lower
 
 #: The fit stops once every parameter is within this many standard errors of the
 #: linearised optimum (:meth:`MatchProblem.settled`).
@@ -73,8 +72,8 @@ class MatchProblem:
         if cached is None:
             if len(self._log_wd) > 64:
                 self._log_wd.clear()
-            log_w, slope = self._wd_table.log_value_and_slope(np.log(rate * float(self.grid.t_days[-1])))
-            cached = self._log_wd[rate] = (float(log_w), float(slope))
+            log_td = float(np.log(rate * float(self.grid.t_days[-1])))
+            cached = self._log_wd[rate] = self._wd_table.log_value_and_slope_at(log_td)
         return cached
 
     def from_plain(self, theta, bounds):
@@ -142,9 +141,7 @@ class MatchProblem:
             g, pi, k = self.kernel(th)
             # Influx at fixed pressures changes only with p_i, the strength and the time constant.
             we = st.we_rb if j == 0 else solver.influx_at(st.p_psia, pi, k)
-            dp = -solve_triangular(
-                jac_p, solver.residual(st.p_psia, we, g, pi) - r0, lower=True, check_finite=False
-            )  # dp/dθ_j x step
+            dp = -solve_lower(jac_p, solver.residual(st.p_psia, we, g, pi) - r0)  # dp/dθ_j x step
             dp_dtheta[:, j] = dp / steps[j]
             we_total = we + causal_convolution(st.dwe_dp_column, dp)
             jac[:, j] = (solver.observe(we_total, g, pi, st.p_psia + dp) - y) / steps[j]
