@@ -234,6 +234,9 @@ class TankSolver:
         self.influx = influx
         self.table = grid.table
         self._pz_initial = (None, None)  # (p_i, p_i/z_i): a fit asks for the same p_i many times
+        # The interpolation onto the survey times, t_1..t_N columns, contiguous: a product with
+        # the strided view costs more than the rest of observe().
+        self._obs_steps = np.ascontiguousarray(grid.obs_interp[:, 1:])
 
     def pz_initial(self, pi):
         """p_i/z_i [psia] (the table's value, remembered for the last p_i)."""
@@ -308,13 +311,13 @@ class TankSolver:
     def observe(self, we, g_scf, pi, p_grid):
         """Model p/z at the survey times [psia]."""
         g, tab = self.grid, self.table
-        we_obs = g.obs_interp[:, 1:] @ we  # We(t_0) = 0
+        we_obs = self._obs_steps @ we  # We(t_0) = 0
         pz_i = self.pz_initial(pi)
         x = (we_obs - g.obs_wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
         n = 1.0 - g.obs_gp_scf / g_scf
         if g.ce_per_psi == 0.0:
             return pz_i * n / (1.0 - x)
-        p = g.obs_interp[:, 0] * pi + g.obs_interp[:, 1:] @ p_grid
+        p = g.obs_interp[:, 0] * pi + self._obs_steps @ p_grid
         p_lo, p_hi = float(tab.p[0]), float(tab.p[-1])
         for _ in range(6):  # Newton on each survey's own balance
             u = tab.pz(p) / pz_i
