@@ -198,6 +198,27 @@ class DimensionlessTable:
             d = np.where(above, 0.0, d)
         return y, d
 
+    def log_value_and_slope_at(self, log_td: float) -> tuple[float, float]:
+        """:meth:`log_value_and_slope` at one point, in plain floats: the same operations in
+        the same order (so the same bits) without the array calls, which cost 20x the
+        arithmetic for one point (the history match asks for one point at a time)."""
+        x = float(log_td)
+        x0, x1 = float(self.log_td[0]), float(self.log_td[-1])
+        if x < x0 or x > x1:
+            y, d = self.log_value_and_slope(x)
+            return float(y), float(d)
+        n = self.log_td.size
+        h = (x1 - x0) / (n - 1)
+        i = min(int((x - x0) / h), n - 2)
+        u = (x - float(self.log_td[i])) / h
+        y0, y1 = float(self.log_f[i]), float(self.log_f[i + 1])
+        m0, m1 = float(self.slope[i]) * h, float(self.slope[i + 1]) * h
+        u2 = u * u
+        u3 = u2 * u
+        y = (2 * u3 - 3 * u2 + 1) * y0 + (u3 - 2 * u2 + u) * m0 + (3 * u2 - 2 * u3) * y1 + (u3 - u2) * m1
+        d = (6 * (u2 - u) * (y0 - y1) + (3 * u2 - 4 * u + 1) * m0 + (3 * u2 - 2 * u) * m1) / h
+        return y, d
+
     def __call__(self, td):
         t = np.asarray(td, float)
         if np.any(t <= 0):

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.interpolate import CubicSpline
-from scipy.linalg import solve_triangular
+from scipy.linalg import LinAlgError, get_lapack_funcs
 
 from ..errors import InsufficientDataError
 from ..inputs import FieldInputs
@@ -34,12 +34,30 @@ from ..tank.balance_terms import (
 from ..units import FT3_PER_BBL, StandardConditions
 from .influx import causal_convolution, lower_toeplitz
 
+try:  # np.interp's own kernel, bit for bit: a fit interpolates thousands of times on short
+    # arrays, where np.interp's argument checks cost as much as the interpolation (issue 17)
+    from numpy._core.multiarray import interp as _interp
+except ImportError:  # pragma: no cover - another numpy layout
+    _interp = np.interp
+
 #: Grid steps: about one per production period, at least this many...
 MIN_STEPS = 24
 #: ...and at most this many (longer histories get longer steps).
 MAX_STEPS = 480
 _NEWTON_TOL_PSI = 1e-7
 _NEWTON_MAX_ITER = 30
+_TRTRS = get_lapack_funcs(("trtrs",), (np.zeros((1, 1)),))[0]
+
+
+def solve_lower(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """x with a x = b for a C-ordered lower-triangular float64 ``a``: the LAPACK call that
+    ``scipy.linalg.solve_triangular(a, b, lower=True, check_finite=False)`` makes (the
+    transposed, Fortran-ordered system), without its argument checks, which cost three times
+    the solve on the history match's 24-480 steps (issue 17)."""
+    x, info = _TRTRS(a.T, b, lower=0, trans=1)
+    if info > 0:
+        raise LinAlgError(f"singular matrix: resolution failed at diagonal {info - 1}")
+    return x
 
 
 class PzTable:
@@ -61,10 +79,10 @@ class PzTable:
         self.bg_coef = float(bg_rcf_per_scf(1.0, t_degF, 1.0, conditions)) / FT3_PER_BBL
 
     def pz(self, p):
-        return np.interp(p, self.p, self.phi)
+        return _interp(p, self.p, self.phi)  # np.interp(p, self.p, self.phi)
 
     def dpz(self, p):
-        return np.interp(p, self.p, self.dphi)
+        return _interp(p, self.p, self.dphi)
 
     def p_of_pz(self, pz):
         return np.interp(pz, self.phi, self.p)
@@ -244,16 +262,28 @@ class TankSolver:
         self.grid = grid
         self.influx = influx
         self.table = grid.table
+        self._pz_initial = (None, None)  # (p_i, p_i/z_i): a fit asks for the same p_i many times
+        # The interpolation onto the survey times, t_1..t_N columns, contiguous: a product with
+        # the strided view costs more than the rest of observe().
+        self._obs_steps = np.ascontiguousarray(grid.obs_interp[:, 1:])
+
+    def pz_initial(self, pi):
+        """p_i/z_i [psia] (the table's value, remembered for the last p_i)."""
+        last_pi, last = self._pz_initial
+        if pi != last_pi:
+            last = self.table.pz(pi)
+            self._pz_initial = (pi, last)
+        return last
 
     def gas_pore_volume_rb(self, g_scf, pi):
-        return g_scf * self.table.bg_coef / self.table.pz(pi)  # G B_gi, B_gi = coef z_i / p_i
+        return g_scf * self.table.bg_coef / self.pz_initial(pi)  # G B_gi, B_gi = coef z_i / p_i
 
     def influx_at(self, p, pi, kernel_column):
         return causal_convolution(kernel_column, self.influx.drops(pi, p))
 
     def residual(self, p, we, g_scf, pi):
         g = self.grid
-        u = self.table.pz(p) / self.table.pz(pi)
+        u = self.table.pz(p) / self.pz_initial(pi)
         d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
         return u * d - (1.0 - g.gp_scf / g_scf)
 
@@ -269,7 +299,7 @@ class TankSolver:
         """(R, a, c): the residual and ∂R/∂p = diag(c) − diag(a) T(m), with a = u/(G B_gi) > 0
         and T(m) = ∂We/∂p."""
         g, tab = self.grid, self.table
-        pz_i = tab.pz(pi)
+        pz_i = self.pz_initial(pi)
         gpv = self.gas_pore_volume_rb(g_scf, pi)
         u = tab.pz(p) / pz_i
         d = 1.0 - g.ce_per_psi * (pi - p) - (we - g.wp_rb) / gpv
@@ -286,20 +316,21 @@ class TankSolver:
         m = dwe_dp_column(kernel_column, self.influx.bands)
         if p_start is None:  # the volumetric history
             p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
-        p = np.clip(np.asarray(p_start, float), tab.p[0], tab.p[-1])
+        p_lo, p_hi = float(tab.p[0]), float(tab.p[-1])
+        p = np.clip(np.asarray(p_start, float), p_lo, p_hi)
         converged = False
-        scaled = -lower_toeplitz(m)
+        scaled = lower_toeplitz(-m)  # = −T(m), without a second n x n array
         diagonal = scaled.reshape(-1)[:: p.size + 1]  # a view: the diagonal, set at every step
         for _ in range(_NEWTON_MAX_ITER):
             we = self.influx_at(p, pi, kernel_column)
             r, a, c = self._balance_parts(p, we, g_scf, pi)
             with np.errstate(divide="ignore", invalid="ignore"):
                 diagonal[:] = c / a - m[0]
-                step = solve_triangular(scaled, -r / a, lower=True, check_finite=False)
-            if not np.all(np.isfinite(step)):
+                step = solve_lower(scaled, -r / a)
+            if not np.isfinite(step).all():  # array methods: the hot loop of every fit
                 break
-            p_new = np.clip(p + step, tab.p[0], tab.p[-1])
-            done = np.max(np.abs(p_new - p)) < _NEWTON_TOL_PSI
+            p_new = np.minimum(np.maximum(p + step, p_lo), p_hi)  # np.clip, without its wrapper
+            done = np.abs(p_new - p).max() < _NEWTON_TOL_PSI
             p = p_new
             if done:
                 converged = True
@@ -309,17 +340,18 @@ class TankSolver:
     def observe(self, we, g_scf, pi, p_grid):
         """Model p/z at the survey times [psia]."""
         g, tab = self.grid, self.table
-        we_obs = g.obs_interp[:, 1:] @ we  # We(t_0) = 0
-        pz_i = tab.pz(pi)
+        we_obs = self._obs_steps @ we  # We(t_0) = 0
+        pz_i = self.pz_initial(pi)
         x = (we_obs - g.obs_wp_rb) / self.gas_pore_volume_rb(g_scf, pi)
         n = 1.0 - g.obs_gp_scf / g_scf
         if g.ce_per_psi == 0.0:
             return pz_i * n / (1.0 - x)
-        p = g.obs_interp[:, 0] * pi + g.obs_interp[:, 1:] @ p_grid
+        p = g.obs_interp[:, 0] * pi + self._obs_steps @ p_grid
+        p_lo, p_hi = float(tab.p[0]), float(tab.p[-1])
         for _ in range(6):  # Newton on each survey's own balance
             u = tab.pz(p) / pz_i
             d = 1.0 - g.ce_per_psi * (pi - p) - x
             f = u * d - n
             df = tab.dpz(p) / pz_i * d + u * g.ce_per_psi
-            p = np.clip(p - f / df, tab.p[0], tab.p[-1])
+            p = np.minimum(np.maximum(p - f / df, p_lo), p_hi)
         return tab.pz(p)

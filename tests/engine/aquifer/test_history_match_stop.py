@@ -10,7 +10,7 @@ from server.engine.prepare.points import prepare
 from tests.engine.twenty_year import twenty_year_field
 
 
-def _fit(name, monkeypatch, **override):
+def _fit(name, monkeypatch, model="aquifer_veh_radial", **override):
     inputs = twenty_year_field(name)
     prepared = prepare(inputs)
     original = hm.least_squares
@@ -23,7 +23,7 @@ def _fit(name, monkeypatch, **override):
         return result
 
     monkeypatch.setattr(hm, "least_squares", recording)
-    fit = hm.fit_aquifer_model(inputs, prepared, "aquifer_veh_radial")
+    fit = hm.fit_aquifer_model(inputs, prepared, model)
     monkeypatch.undo()
     return fit, runs[0]
 
@@ -42,6 +42,22 @@ def test_stopped_fit_is_within_a_tenth_of_a_standard_error_of_the_converged_fit(
     assert fit.rss_psia2 - tight.rss_psia2 <= 2 * 0.01 * s2
     assert fit.converged
     assert run.nfev <= hm.MAX_EVALUATIONS
+
+
+@pytest.mark.parametrize("model", hm.DEFAULT_MODELS)
+def test_the_rule_ends_every_model_s_fit_within_a_tenth_of_a_standard_error(model, monkeypatch):
+    # least_squares ignores a callback's return value; only StopIteration ends the fit (scipy
+    # status -2). Until engine 0.6.5 the rule returned True and every fit ran on to ftol.
+    fit, run = _fit("aquifer", monkeypatch, model)
+    assert run.status == -2, run.message
+    tight, tight_run = _fit(
+        "aquifer", monkeypatch, model, callback=None, ftol=1e-12, xtol=1e-12, max_nfev=300
+    )
+    assert run.nfev < tight_run.nfev
+    # The rule's tolerance (history_match.SETTLED_SE, Bates & Watts 1981's relative offset):
+    # GIIP within 0.1 standard error of the fit run to a relative cost change of 1e-12.
+    assert abs(fit.giip_bscf - tight.giip_bscf) <= 0.1 * fit.param_se["giip_bscf"]
+    assert fit.converged
 
 
 @pytest.mark.parametrize("name", ["volumetric", "hidden neighbour"])

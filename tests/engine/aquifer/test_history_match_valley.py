@@ -7,6 +7,7 @@ import numpy as np
 import pytest
 
 from server.engine.aquifer import history_match as hm
+from server.engine.aquifer import match_problem
 from server.engine.prepare.points import prepare
 from tests.engine.twenty_year import CASES, twenty_year_field
 
@@ -23,7 +24,7 @@ def _fit(inputs, prepared, monkeypatch, plain=False, **override):
 
     monkeypatch.setattr(hm, "least_squares", recording)
     if plain:
-        monkeypatch.setattr(hm, "VALLEY_MODELS", ())
+        monkeypatch.setattr(match_problem, "VALLEY_MODELS", ())
     fit = hm.fit_aquifer_model(inputs, prepared, "aquifer_veh_radial")
     monkeypatch.undo()
     return fit, runs[0]
