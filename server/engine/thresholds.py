@@ -37,7 +37,7 @@ class FlagThresholds:
     well_min_points: int = 2  # surveys of a well beyond that, on the same side
     near_initial_ratio: float = 0.25  # a well that has seen at most this share of the others' fall
     outlier_sigma: float = 4.0  # a survey this many noise widths off the trend is an outlier
-    above_initial_sigma: float = 3.0  # a survey above pi by this many noise widths ...
+    above_initial_sigma: float = 4.0  # a survey above pi by this many noise widths ...
     above_initial_min_psia: float = 25.0  # ... and by at least this much
     survey_gap_days: float = 3 * 365.25  # no survey for this long while producing
     production_gap_days: float = 62.0  # a production period longer than this (missing months)
