@@ -23,6 +23,7 @@ from sqlalchemy.orm import Session
 
 from ...db.base import utcnow
 from ...db.models import Field, Job, RecomputeFailure
+from ...db.statistics import refresh_statistics
 from .queue import MAX_ATTEMPTS, PART_JOB, STALE_AFTER
 
 # Parts of at most 10 fields: a claim costs a few transactions, about 1 % of ten fields'
@@ -45,6 +46,7 @@ def split(session: Session, parent_id: int) -> None:
     over from a dead worker keeps its parts)."""
     if session.execute(select(Job.id).where(Job.parent_id == parent_id).limit(1)).first() is not None:
         return
+    refresh_statistics(session)  # every field is read next: plans from current statistics
     parent = session.get(Job, parent_id)
     ids = list(session.execute(select(Field.id).order_by(Field.id)).scalars())
     size = part_size(len(ids))
