@@ -86,8 +86,13 @@ def _best_other(ev: Evidence, th: FlagThresholds, prefix: str, *, identifiable: 
     if cmp is None:
         return None, None
     single = cmp.row("single_tank")
+    leads = True  # every model ranked so far is of this family
     for r in cmp.rows:
-        if r.name.startswith(prefix) and r.delta_aicc < th.comparable_delta_aicc:
+        ours = r.name.startswith(prefix)
+        leads = leads and ours
+        # Comparable to the best model, or ranked below only models of its own family (a
+        # determined member of the family that leads the ranking speaks for the family).
+        if ours and (r.delta_aicc < th.comparable_delta_aicc or leads):
             gain = None if single is None else single.aicc - r.aicc
             need = th.model_preference_delta_aicc
             if (identifiable or strict) and not r.identifiable:

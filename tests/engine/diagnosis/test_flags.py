@@ -160,6 +160,29 @@ def test_a_neighbour_tank_larger_than_the_map_does_not_explain_away_a_rising_col
     assert "aquifer_or_compartment" in found and "compartment_signature" not in found
 
 
+def test_a_determined_aquifer_model_speaks_for_the_family_that_leads_the_ranking():
+    # Fetkovich ranks first but its parameters are not determined (it would need the larger
+    # unidentified margin); the pot aquifer, determined, is 3-4 AICc behind it (not "comparable")
+    # yet beats the single tank by more than the 10-AICc margin. Only aquifer models rank above
+    # it, so the aquifer family leads the ranking: the aquifer flag names the pot aquifer. A
+    # two-tank model ranked between them breaks the lead (common practice: AICc ranks models,
+    # Burnham & Anderson 2002).
+    def fits(*extra):
+        return [
+            _fit("single_tank", 4000.0, 2, 100.0),
+            _fit("aquifer_fetkovich", 2350.0, 4, 90.0, identifiable=False),
+            _fit("aquifer_pot", 2800.0, 3, 92.0),
+            *extra,
+        ]
+
+    cmp = compare_models(fits(), np.arange(N, dtype=float))
+    (flag,) = [f for f in raise_flags(_ev(comparison=cmp)) if f.code == "aquifer_signature"]
+    assert flag.numbers["aquifer_model"] == "aquifer_pot"
+    assert flag.numbers["delta_aicc_vs_single_tank"] >= 10
+    between = compare_models(fits(_fit("two_tank", 2500.0, 4, 95.0)), np.arange(N, dtype=float))
+    assert "aquifer_signature" not in codes(_ev(comparison=between))
+
+
 def test_overpressure_and_pot_aquifer_are_not_confused():
     # An overpressured field: the compressibility model and a pot aquifer fit alike.
     cmp = _comparison(tank_ce=1500.0, aquifer_pot=1500.0)
