@@ -204,7 +204,29 @@ def cole_rising(ev: Evidence, th: FlagThresholds) -> bool:
         and c.direction == "rising"
         and c.p_value < th.cole_p_value
         and c.change_frac >= th.cole_min_change_frac
-    )
+    ) or _cole_and_model_agree(ev, th)
+
+
+def _cole_and_model_agree(ev: Evidence, th: FlagThresholds) -> bool:
+    """Two modest signs that agree: the Cole plot rises by the Cole rule itself (p < 0.05) by at
+    least ``cole_min_change_frac``, and a determined aquifer model leads the model ranking ahead
+    of the single tank by at least ``comparable_delta_aicc`` (engine 0.6.5; measured on
+    bench_accuracy seeds 1-40: no depletion-drive, overpressured, condensate or off-datum field
+    shows both)."""
+    c, cmp = ev.cole, ev.comparison
+    if c is None or c.direction != "rising" or c.change_frac < th.cole_min_change_frac or cmp is None:
+        return False
+    if not cmp.rows or not cmp.rows[0].name.startswith("aquifer_"):
+        return False
+    single = cmp.row("single_tank")
+    if single is None:
+        return False
+    for r in cmp.rows:
+        if not r.name.startswith("aquifer_"):
+            return False
+        if r.identifiable:
+            return single.aicc - r.aicc >= th.comparable_delta_aicc
+    return False
 
 
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:

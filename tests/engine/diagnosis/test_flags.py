@@ -183,6 +183,23 @@ def test_a_determined_aquifer_model_speaks_for_the_family_that_leads_the_ranking
     assert "aquifer_signature" not in codes(_ev(comparison=between))
 
 
+def test_a_modest_cole_rise_counts_when_a_determined_aquifer_model_leads():
+    # A Cole plot rising by the Cole rule itself (p = 0.02 < 0.05, not the flag's 0.01) by 15 %:
+    # alone it raises nothing. With a determined aquifer model first in the ranking, ahead of
+    # the single tank by at least comparable_delta_aicc (but short of the 10-AICc margin), the
+    # two modest signs agree and raise the aquifer flag.
+    weak = ColeTrend("rising", 20, 0.3, 0.12, 90.0, 2.5, 0.02, 0.15, (0.02, 0.28))
+    assert "aquifer_signature" not in codes(_ev(cole=weak))
+    lead = compare_models(
+        [_fit("single_tank", 4000.0, 2, 100.0), _fit("aquifer_fetkovich", 3200.0, 4, 92.0)],
+        np.arange(N, dtype=float),
+    )
+    gain = lead.row("single_tank").aicc - lead.row("aquifer_fetkovich").aicc
+    assert 2.0 <= gain < 10.0
+    assert "aquifer_signature" in codes(_ev(cole=weak, comparison=lead))
+    assert "aquifer_signature" not in codes(_ev(comparison=lead))  # the model alone is not enough
+
+
 def test_overpressure_and_pot_aquifer_are_not_confused():
     # An overpressured field: the compressibility model and a pot aquifer fit alike.
     cmp = _comparison(tank_ce=1500.0, aquifer_pot=1500.0)
