@@ -197,7 +197,8 @@ def _wells_disagree(ev: Evidence) -> list[WellFinding]:
 def cole_rising(ev: Evidence, th: FlagThresholds) -> bool:
     """The Cole plot (F/Eg against Gp) rises by the Cole rule, at p below ``cole_p_value`` and by
     at least ``cole_min_change_frac``: a model-free sign of pressure support (Cole 1969; domain
-    reference §7.2)."""
+    reference §7.2); or it rises less certainly while a determined aquifer model leads the
+    ranking (:func:`_cole_and_model_agree`)."""
     c = ev.cole
     return bool(
         c is not None
