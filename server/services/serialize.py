@@ -20,10 +20,6 @@ def _field_names(cls: type) -> tuple[str, ...]:
     return names
 
 
-def _float(f: float):
-    return f if math.isfinite(f) else None
-
-
 def _array(a: np.ndarray) -> list:
     """An array as nested lists; NaN and ±inf become None (finite numeric arrays in one C pass)."""
     kind = a.dtype.kind
@@ -53,12 +49,13 @@ def to_jsonable(value):
         return [to_jsonable(v) for v in value]
     if isinstance(value, np.ndarray):
         return _array(value)
-    if isinstance(value, bool | np.bool_):
+    if isinstance(value, np.bool_):
         return bool(value)
     if isinstance(value, np.integer):
         return int(value)
     if isinstance(value, float | np.floating):
-        return _float(float(value))
+        f = float(value)
+        return f if math.isfinite(f) else None
     return value
 
 

@@ -20,6 +20,7 @@ import numpy as np
 
 from ..modelfit import ModelFit
 from ..prepare.points import PreparedData
+from ..tank.pz_estimate import BEFORE_PRODUCTION_BSCF
 from .compare import ModelComparison
 from .flags import Outlier
 
@@ -41,10 +42,6 @@ def off_the_best_model(
     (:func:`off_the_fit`); without a ranked model every candidate is kept."""
     kept = off_the_fit(outliers, _best_fit(comparison, fits), prepared, sigma_limit, noise_psia)
     return tuple(o for o in kept if not _matches_the_record(o, prepared, sigma_limit, noise_psia))
-
-
-#: Gas produced before a survey [Bscf] below which it reads the initial state.
-BEFORE_PRODUCTION_BSCF = 1e-6
 
 
 def _matches_the_record(o: Outlier, prepared: PreparedData, sigma_limit: float, noise_psia) -> bool:

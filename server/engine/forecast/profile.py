@@ -85,26 +85,14 @@ def _field_rate(s: CaseSettings, pwf: float, wells):
     """q(p̄) = U min(plateau, Σ C (p̄² − p_wf²)^n) of the wells on stream in the month [Mscf/d]."""
     u, plateau = s.plan.uptime_frac, s.plan.plateau_rate_mscf_per_day
     m_of_p = s.pseudo_pressure
-    if m_of_p is not None and any(form == "pseudo_pressure" for _, _, form in wells):
+    if m_of_p is None or not any(form == "pseudo_pressure" for _, _, form in wells):
+        wells, m_of_p = tuple((c, n) for c, n, _ in wells), None  # all in the p² form: (C, n) pairs
 
-        def rate(p_mid: float) -> float:
-            d = potential_mscf_per_day(wells, p_mid, pwf, m_of_p)
-            return u * (d if plateau is None else min(plateau, d))
-
-        return rate
-    # All in the p² form: potential_mscf_per_day's sum, in the same order, without its checks.
-    cn, pwf2 = tuple((c, n) for c, n, _ in wells), pwf * pwf
-
-    def rate_p2(p_mid: float) -> float:
-        x = p_mid * p_mid - pwf2
-        if x <= 0.0:
-            return 0.0
-        d = 0.0
-        for c, n in cn:
-            d += c * x**n
+    def rate(p_mid: float) -> float:
+        d = potential_mscf_per_day(wells, p_mid, pwf, m_of_p)
         return u * (d if plateau is None else min(plateau, d))
 
-    return rate_p2
+    return rate
 
 
 def run_case(case: str, giip_bscf: float, stepper: Stepper, s: CaseSettings) -> Profile:

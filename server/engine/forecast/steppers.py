@@ -114,12 +114,3 @@ class LineStepper(Stepper):
 
     def _pressure_after(self, gas_scf: float, dt_days: float) -> float:
         return self._p_at(self.gp_scf + gas_scf)
-
-    def trial(self, gas_scf: float, dt_days: float) -> float:
-        """:meth:`Stepper.trial` without its extra call: the profile asks two or three a month."""
-        last = self._last
-        if last is not None and last[0] == gas_scf and last[1] == dt_days:
-            return last[2]
-        p = self._p_at(self.gp_scf + gas_scf)
-        self._last = (gas_scf, dt_days, p)
-        return p

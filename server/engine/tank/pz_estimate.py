@@ -270,14 +270,17 @@ def estimate_pz(
     keep = np.ones(n, bool)
     outliers = ()
     if screen_outliers:
-        keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, notes)
+        screen_notes: list[str] = []
+        keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes)
         held = _corroborated(x, y, w, keep, fit_subset, initial_pz_psia)
-        if held is not None:
-            keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, [], held)
-            notes.append(
+        if held is not None:  # screen again with it held; the notes are the second screen's
+            screen_notes = []
+            keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes, held)
+            screen_notes.append(
                 "The survey before production agrees with the stated initial pressure: kept in the "
                 "line although it lies off it (the rule sets aside bad readings, not the initial state)."
             )
+        notes.extend(screen_notes)
     fit = fit_subset(keep)
     a, b, ce = fit.phi
     _refuse_unless_declining(fit, x[keep], anchored, confidence_level, min_depletion_frac)
@@ -374,6 +377,8 @@ def estimate_pz(
 #: Residual widths within which a survey before production agrees with the stated pi/zi
 #: (the diagnosis' own ``outlier_sigma``; common practice, not a published value).
 RECORD_SIGMA = 4.0
+#: Gas produced before a survey [Bscf] below which it reads the initial state.
+BEFORE_PRODUCTION_BSCF = 1e-6
 
 
 def _corroborated(x, y, w, keep, fit_subset, initial_pz_psia) -> np.ndarray | None:
@@ -381,7 +386,7 @@ def _corroborated(x, y, w, keep, fit_subset, initial_pz_psia) -> np.ndarray | No
     :data:`RECORD_SIGMA` residual widths of the stated pi/zi [psia]; None when there are none."""
     if initial_pz_psia is None or keep.all():
         return None
-    early = (~keep) & (x <= 1e-6)
+    early = (~keep) & (x <= BEFORE_PRODUCTION_BSCF)
     if not early.any():
         return None
     sigma = fit_subset(keep).lin.sigma
