@@ -5,10 +5,33 @@ from __future__ import annotations
 from collections.abc import Iterator
 from contextlib import contextmanager
 
+import orjson
 from sqlalchemy import Connection, Engine, create_engine, event
 from sqlalchemy.orm import Session, sessionmaker
 
 WRITE_OPTION = "tankbook_write"  # execution option: this transaction will write
+_JSON_OPTIONS = orjson.OPT_NON_STR_KEYS | orjson.OPT_SERIALIZE_NUMPY
+
+
+def json_dumps(value) -> str:
+    """JSON text for a JSON column: compact, numbers as ``json.dumps`` writes them (shortest
+    round trip), NaN and infinity as null (PostgreSQL's json type refuses them anyway). About
+    ten times faster than ``json.dumps`` on an estimate's 150 KB detail, which every
+    recompute writes (issue 17)."""
+    return orjson.dumps(value, default=_plain, option=_JSON_OPTIONS).decode()
+
+
+def json_loads(value):
+    """A JSON column's value; SQLite hands back a stored JSON number as a number."""
+    if isinstance(value, int | float):
+        return value
+    return orjson.loads(value)
+
+
+def _plain(value):
+    if hasattr(value, "item"):  # a NumPy scalar
+        return value.item()
+    raise TypeError(f"Object of type {type(value).__name__} is not JSON serializable")
 
 
 def make_engine(
@@ -23,6 +46,8 @@ def make_engine(
     and ``BEGIN IMMEDIATE`` for transactions that will write (see :class:`Database`).
 
     ``pool_size``/``max_overflow`` size the connection pool (not for in-memory SQLite)."""
+    kwargs.setdefault("json_serializer", json_dumps)
+    kwargs.setdefault("json_deserializer", json_loads)
     memory = url.startswith("sqlite") and (":memory:" in url or url.rstrip("/") in ("sqlite:", "sqlite://"))
     if not memory:
         if pool_size is not None:

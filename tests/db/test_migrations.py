@@ -341,3 +341,32 @@ def test_0012s_sales_gas_factor_is_not_stated_for_older_snapshots_and_goes_back(
     finally:
         eng.dispose()
     assert not {"sales_gas_frac", "sales_gas_frac_source"} & cols
+
+
+def test_0013z_large_json_is_compressed_with_lz4_on_postgresql_and_goes_back(fresh_database_url):
+    """PostgreSQL: estimate detail (about 150 KB a recompute) is stored with LZ4, which halved
+    the server's processor time of a portfolio recompute (issue 17, benchmarks/README.md); the
+    downgrade restores the default. SQLite has nothing to compress: the revision is a no-op."""
+    import pytest
+
+    upgrade(fresh_database_url)
+    if not fresh_database_url.startswith("postgresql"):
+        downgrade(fresh_database_url, "0012j")
+        upgrade(fresh_database_url)
+        return
+    query = sa.text(
+        "SELECT attcompression FROM pg_attribute WHERE attrelid = CAST(:t AS regclass) AND attname = :c"
+    )
+    eng = sa.create_engine(fresh_database_url)
+    try:
+        with eng.connect() as c:
+            if c.execute(sa.text("SELECT current_setting('server_version_num')::int")).scalar() < 140000:
+                pytest.skip("PostgreSQL before 14 has no per-column compression")
+            columns = (("estimate", "detail"), ("reserves_review_field", "forecast"))
+            assert [c.execute(query, {"t": t, "c": col}).scalar() for t, col in columns] == ["l", "l"]
+        downgrade(fresh_database_url, "0012j")
+        with eng.connect() as c:
+            assert [c.execute(query, {"t": t, "c": col}).scalar() for t, col in columns] == ["", ""]
+    finally:
+        eng.dispose()
+    upgrade(fresh_database_url)

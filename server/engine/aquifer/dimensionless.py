@@ -171,6 +171,11 @@ class DimensionlessTable:
 
     def log_value_and_slope(self, log_td):
         """(ln f, d ln f / d ln t_D) at ln t_D (any array shape)."""
+        return self._evaluate(log_td, True)
+
+    def _evaluate(self, log_td, with_slope: bool):
+        """ln f at ln t_D and, ``with_slope``, d ln f / d ln t_D (else None): the slope's
+        arithmetic is skipped when only the value is wanted (a kernel column, issue 17)."""
         x = np.asarray(log_td, float)
         x0, x1 = self.log_td[0], self.log_td[-1]
         if self.plateau is None and np.any(x > x1):
@@ -187,15 +192,17 @@ class DimensionlessTable:
         u2 = u * u
         u3 = u2 * u
         y = (2 * u3 - 3 * u2 + 1) * y0 + (u3 - 2 * u2 + u) * m0 + (3 * u2 - 2 * u3) * y1 + (u3 - u2) * m1
-        d = (6 * (u2 - u) * (y0 - y1) + (3 * u2 - 4 * u + 1) * m0 + (3 * u2 - 2 * u) * m1) / h
+        d = None
+        if with_slope:
+            d = (6 * (u2 - u) * (y0 - y1) + (3 * u2 - 4 * u + 1) * m0 + (3 * u2 - 2 * u) * m1) / h
         below = x < x0
         if np.any(below):
             y = np.where(below, self.log_f[0] + 0.5 * (x - x0), y)
-            d = np.where(below, 0.5, d)
+            d = np.where(below, 0.5, d) if with_slope else None
         above = x > x1
         if np.any(above):
             y = np.where(above, self.log_f[-1], y)
-            d = np.where(above, 0.0, d)
+            d = np.where(above, 0.0, d) if with_slope else None
         return y, d
 
     def log_value_and_slope_at(self, log_td: float) -> tuple[float, float]:
@@ -223,7 +230,7 @@ class DimensionlessTable:
         t = np.asarray(td, float)
         if np.any(t <= 0):
             raise InputRangeError(f"{self.name}: t_D must be > 0")
-        y, _ = self.log_value_and_slope(np.log(t))
+        y, _ = self._evaluate(np.log(t), False)
         out = np.exp(y)
         return float(out) if out.ndim == 0 else out
 

@@ -128,20 +128,6 @@ def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, 
     # The fluid z was computed for (well stream when corrected); the lab table, if any, is
     # not used here: it would change the flow term only, by the table's small deviation.
     fluid = prepared.fluid or inputs.fluid
-    t_degF = inputs.reservoir_temperature_degF
-
-    def z_of_p(p):
-        return z_factor(p, t_degF, fluid, inputs.choices.z_method)
-
-    if potential == "pseudo_pressure" and viscosity_cp_of_p is None:
-        viscosity_cp_of_p = viscosity_lee_gonzalez_eakin_of_p(t_degF, fluid.gas_gravity, z_of_p)
-
-    pot = potential_table(
-        z_of_p,
-        1.5 * inputs.initial_pressure_psia + 500.0,
-        method=potential,
-        viscosity_cp_of_p=viscosity_cp_of_p,
-    )
     return _Problem(
         np.diff(knots).tolist(),
         np.diff(cum_tank, axis=0).tolist(),
@@ -150,8 +136,37 @@ def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, 
         layout.obs_tank,
         y,
         np.sqrt(w),
-        pot,
+        _potential(inputs, fluid, potential, viscosity_cp_of_p),
     )
+
+
+#: The last flow-potential table built from the field's own z and viscosity: (key, table).
+_last_potential: tuple = (None, None)
+
+
+def _potential(inputs, fluid, potential: str, viscosity_cp_of_p) -> PotentialTable:
+    """The flow-potential table of the field's gas up to 1.5 p_i + 500 psia. Without a given
+    viscosity the table depends only on the gas, temperature, z method and p_i, and a field's
+    analysis asks for it again (the two-tank fit, then its stepped recovery): the last one is
+    kept (issue 17)."""
+    global _last_potential
+    t_degF, method = inputs.reservoir_temperature_degF, inputs.choices.z_method
+    key = (fluid, t_degF, method, float(inputs.initial_pressure_psia), potential)
+    if viscosity_cp_of_p is None and _last_potential[0] == key:
+        return _last_potential[1]
+
+    def z_of_p(p):
+        return z_factor(p, t_degF, fluid, method)
+
+    viscosity = viscosity_cp_of_p
+    if potential == "pseudo_pressure" and viscosity is None:
+        viscosity = viscosity_lee_gonzalez_eakin_of_p(t_degF, fluid.gas_gravity, z_of_p)
+    table = potential_table(
+        z_of_p, 1.5 * inputs.initial_pressure_psia + 500.0, method=potential, viscosity_cp_of_p=viscosity
+    )
+    if viscosity_cp_of_p is None:
+        _last_potential = (key, table)
+    return table
 
 
 #: Search box of the log parameters (GIIP in Bscf, connection in its unit): far wider than

@@ -87,8 +87,12 @@ def field_done(
     return the portfolio job's (fields done so far, fields)."""
     session.execute(update(Job).where(Job.id == part_id).values(progress_done=done, error=part_error))
     # Last, so that the portfolio job's row is locked only until this commit.
-    session.execute(update(Job).where(Job.id == parent_id).values(progress_done=Job.progress_done + 1))
-    parent = session.execute(select(Job.progress_done, Job.progress_total).where(Job.id == parent_id)).one()
+    parent = session.execute(
+        update(Job)
+        .where(Job.id == parent_id)
+        .values(progress_done=Job.progress_done + 1)
+        .returning(Job.progress_done, Job.progress_total)
+    ).one()
     if part_error:
         error = failures_text(session, parent_id, parent.progress_total)
         session.execute(update(Job).where(Job.id == parent_id).values(error=error))

@@ -10,10 +10,10 @@ from collections.abc import Callable
 
 from sqlalchemy import select, update
 from sqlalchemy.exc import DBAPIError, OperationalError
-from sqlalchemy.orm import Session
+from sqlalchemy.orm import Session, joinedload
 
 from ...db.base import utcnow
-from ...db.models import Field, Job
+from ...db.models import Field, Fluid, Job
 from ...db.session import Database
 from . import parts
 from .failures import clear_failure, describe, record_failure
@@ -42,9 +42,15 @@ def _recompute_one(session: Session, field_id: int, job_id: int | None = None) -
     A failure other than the database's (which leaves the whole job to be retried) is
     kept beside the field (its estimate is then stale, and its page says why) and does
     not stop the job: the field's work is rolled back to a savepoint."""
-    stmt = select(Field).where(Field.id == field_id)
+    stmt = (
+        select(Field)
+        .where(Field.id == field_id)
+        # what the recompute reads of the field in the same statement (issue 17: each lazy load
+        # is a round trip; the lab points follow in one more)
+        .options(joinedload(Field.fluid).selectinload(Fluid.lab_points), joinedload(Field.settings))
+    )
     if is_postgresql(session):
-        stmt = stmt.with_for_update()  # two jobs for one field run one after the other
+        stmt = stmt.with_for_update(of=Field)  # two jobs for one field run one after the other
     field = session.execute(stmt).scalar_one_or_none()
     if field is None:
         return None
