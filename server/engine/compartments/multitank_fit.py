@@ -155,8 +155,12 @@ def _potential(inputs, fluid, potential: str, viscosity_cp_of_p) -> PotentialTab
     if viscosity_cp_of_p is None and _last_potential[0] == key:
         return _last_potential[1]
 
+    last: list = [None, None]  # the viscosity asks for z on the table's own pressures again
+
     def z_of_p(p):
-        return z_factor(p, t_degF, fluid, method)
+        if p is not last[0]:
+            last[:] = [p, z_factor(p, t_degF, fluid, method)]
+        return last[1]
 
     viscosity = viscosity_cp_of_p
     if potential == "pseudo_pressure" and viscosity is None:
