@@ -78,6 +78,13 @@ class PzTable:
         # B_g per unit z/p [rb/scf x psia]: Bg = bg_coef * z / p
         self.bg_coef = float(bg_rcf_per_scf(1.0, t_degF, 1.0, conditions)) / FT3_PER_BBL
 
+    def lists(self) -> tuple[list, list]:
+        """(p/z, p) as Python lists, for scalar bisection (made once: the table is shared)."""
+        cached = getattr(self, "_lists", None)
+        if cached is None:
+            cached = self._lists = (self.phi.tolist(), self.p.tolist())
+        return cached
+
     def pz(self, p):
         return _interp(p, self.p, self.phi)  # np.interp(p, self.p, self.phi)
 

@@ -98,7 +98,7 @@ class LineStepper(Stepper):
         if np.any(np.diff(phi) <= 0):
             raise InsufficientDataError("the corrected p/z does not rise with pressure over the table")
         self.phi = phi
-        self._phi_list, self._p_list = phi.tolist(), table.p.tolist()
+        self._phi_list, self._p_list = (phi.tolist(), table.p.tolist()) if ce_per_psi else table.lists()
         super().__init__(self._p_at(gp_scf), gp_scf)
 
     def _p_at(self, gp_scf: float) -> float:

@@ -181,9 +181,9 @@ def recompute_field(session: Session, field: Field) -> tuple[Estimate, bool]:
     except FieldNotReadyError as exc:
         return _store_failure(session, field, "refused", str(exc), fingerprint(str(exc)))
     fp = fingerprint({"inputs": inputs, "engine": ENGINE_VERSION})
-    latest = current_estimate(session, field.id)
-    if latest is not None and latest.inputs_fingerprint == fp:
-        return latest, False
+    latest = _current_fingerprint(session, field.id)
+    if latest is not None and latest[1] == fp:
+        return session.get(Estimate, latest[0]), False
     try:
         result = analyse_field(inputs)
     except EngineError as exc:
@@ -192,6 +192,18 @@ def recompute_field(session: Session, field: Field) -> tuple[Estimate, bool]:
     session.add(est)
     session.flush()
     return est, True
+
+
+def _current_fingerprint(session: Session, field_id: int) -> tuple[int, str] | None:
+    """(id, inputs fingerprint) of the field's newest estimate, without its detail (about 150
+    KB of JSON that a recompute of an unchanged field need not read)."""
+    row = session.execute(
+        select(Estimate.id, Estimate.inputs_fingerprint)
+        .where(Estimate.field_id == field_id)
+        .order_by(Estimate.id.desc())
+        .limit(1)
+    ).first()
+    return None if row is None else (row[0], row[1])
 
 
 def _estimate_from_result(field_id: int, result: FieldAnalysis, fp: str, inputs: FieldInputs) -> Estimate:
@@ -242,9 +254,9 @@ def _basis_columns(result: FieldAnalysis) -> dict:
 
 
 def _store_failure(session, field, status, message, fp) -> tuple[Estimate, bool]:
-    latest = current_estimate(session, field.id)
-    if latest is not None and latest.inputs_fingerprint == fp:
-        return latest, False
+    latest = _current_fingerprint(session, field.id)
+    if latest is not None and latest[1] == fp:
+        return session.get(Estimate, latest[0]), False
     est = Estimate(
         field_id=field.id,
         method="none",
