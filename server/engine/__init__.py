@@ -6,4 +6,4 @@ in their names; results are frozen dataclasses.
 """
 
 #: Bumped whenever a change can alter a computed number; stored with every estimate.
-ENGINE_VERSION = "0.6.5"
+ENGINE_VERSION = "0.6.6"

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..aquifer.history_match import fit_aquifer_models
+from ..aquifer.tank_solver import field_pz_table
 from ..compartments.multitank_fit import fit_two_tank
 from ..compartments.well_trend import WellFinding, robust_trend, well_disagreements
 from ..errors import EngineError, InsufficientDataError
@@ -133,7 +134,13 @@ def diagnose_field(
     cole = cole_plots[0].trend if cole_plots else None
     candidates = state.outliers if outliers is None else tuple(outliers)
     off = off_the_best_model(
-        candidates, comparison, fits, prepared, inputs.flag_thresholds.outlier_sigma, state.noise_psia
+        candidates,
+        comparison,
+        fits,
+        prepared,
+        inputs.flag_thresholds.outlier_sigma,
+        state.noise_psia,
+        _pz_slope(inputs, prepared),
     )
     evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, off)
     labels = tuple(p.compartment for p in prepared.points if p.included)
@@ -141,6 +148,16 @@ def diagnose_field(
     return Diagnosis(
         gp, pz, labels, cole_plots, tuple(fits), tuple(skipped), comparison, wells, evidence, flags
     )
+
+
+def _pz_slope(inputs: FieldInputs, prepared: PreparedData):
+    """d(p/z)/dp [1] of the field's own z at reservoir temperature, or None if no table can be
+    made (the outlier test then stays in p/z units)."""
+    try:
+        table = field_pz_table(inputs, prepared)
+    except EngineError:
+        return None
+    return table.dpz
 
 
 @dataclass(frozen=True)
