@@ -21,7 +21,7 @@ import numpy as np
 from ..modelfit import ModelFit
 from ..prepare.points import PreparedData
 from ..stats import norm_cdf, t_quantile
-from ..tank.pz_estimate import BEFORE_PRODUCTION_BSCF
+from ..tank.pz_screen import BEFORE_PRODUCTION_BSCF
 from .compare import ModelComparison
 from .flags import Outlier
 

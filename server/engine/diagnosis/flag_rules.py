@@ -404,7 +404,7 @@ def data_quality(ev: Evidence, th: FlagThresholds) -> list[Flag]:
                 {"n_warnings": len(ev.fluid_warnings)},
             )
         )
-    # The p/z estimate's own rule (Bonferroni, 5 % family-wise) sets aside surveys nearer than
+    # The p/z estimate's own rule (Bonferroni, 1 % family-wise) sets aside surveys nearer than
     # outlier_sigma widths; only those beyond it are a data-quality finding (docs/flags.md).
     outliers = [o for o in ev.outliers if o.sigmas >= th.outlier_sigma]
     if outliers:

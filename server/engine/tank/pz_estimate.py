@@ -26,8 +26,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputRangeError, InsufficientDataError
-from ..outliers import linear_subset_fits, robust_outlier_screen
+from ..errors import InsufficientDataError
 from ..stats import (
     Interval,
     RunsTest,
@@ -39,19 +38,22 @@ from ..stats import (
 )
 from ..thresholds import MIN_DEPLETION_FRAC
 from .intervals import LineBand, Uncertainty, derived_ratios, line_band, ratio_uncertainty
-from .line import TankLineFit, bootstrap_phi, fit_tank_line, screen_design
+from .line import bootstrap_phi, fit_tank_line
+from .pz_screen import (
+    PointStatus,
+    check_inputs,
+    corroborated,
+    depletion_frac,
+    point_statuses,
+    refuse_unless_declining,
+    screen_surveys,
+)
 
 #: Fewest usable surveys for a free line (2 parameters) and for one anchored at pi/zi:
 #: two degrees of freedom are left to estimate the survey scatter (common practice).
 MIN_POINTS_FREE = 4
 MIN_POINTS_ANCHORED = 3
 Z_90 = 1.2815515655446004  # standard normal 90th percentile
-# Family-wise level of the Bonferroni outlier rule. 1 %: a clean field of 40 surveys loses a
-# good survey about once in a hundred (at 5 % once in twenty, each a changed line and a flag
-# to check), while a gross error stays far beyond the limit of about 3.9 noise widths, close to
-# the diagnosis' own 4 widths (FlagThresholds.outlier_sigma). A team choice, not a published one.
-OUTLIER_ALPHA = 0.01
-OUTLIER_MAX_FRACTION = 0.2
 
 
 @dataclass(frozen=True)
@@ -106,18 +108,6 @@ def fit_pz_line(gp_bscf, pz_psia, weights=None) -> PzLine:
 def recovery_factor_volumetric(pz_abandon_psia: float, pz_initial_psia: float) -> float:
     """RF = 1 - (p/z)_a / (p/z)_i for a volumetric tank [fraction of GIIP]."""
     return 1.0 - pz_abandon_psia / pz_initial_psia
-
-
-@dataclass(frozen=True)
-class PointStatus:
-    """What the estimate did with one survey (``index`` as in PreparedData.points)."""
-
-    index: int
-    status: str  # "used" | "excluded" (by the engineer) | "outlier" (by the rule)
-    reason: str | None
-    residual_pz_psia: float | None  # observed minus the final line (p/z space)
-    studentized: float | None  # the outlier test's statistic when it set the point aside
-    corrected_pz_psia: float  # (p/z)[1 - ce (pi - p)]; equals p/z when ce = 0
 
 
 @dataclass(frozen=True)
@@ -219,7 +209,7 @@ def estimate_pz(
         Index reported in each PointStatus (default: position in the arrays).
     initial_pz_psia : float, optional
         The field's stated pi/zi [psia]. A survey taken before any production that agrees
-        with it within :data:`RECORD_SIGMA` residual widths is never set aside as an
+        with it within :data:`.pz_screen.RECORD_SIGMA` residual widths is never set aside as an
         outlier: the record corroborates it, and a line that misses it (aquifer support
         flattens the later p/z) is the wrong model, not a bad reading.
 
@@ -240,7 +230,7 @@ def estimate_pz(
     n = x.size
     w = np.ones(n) if weights is None else np.asarray(weights, float)
     d = np.zeros(n) if pressure_drop_psi is None else np.asarray(pressure_drop_psi, float)
-    _check_inputs(x, y, w, d, overpressure_mode, ce_per_psi, confidence_level, bootstrap_samples)
+    check_inputs(x, y, w, d, overpressure_mode, ce_per_psi, confidence_level, bootstrap_samples)
     anchored = anchor_pz_psia is not None
     need = MIN_POINTS_ANCHORED if anchored else MIN_POINTS_FREE
     if n < need:
@@ -271,11 +261,13 @@ def estimate_pz(
     outliers = ()
     if screen_outliers:
         screen_notes: list[str] = []
-        keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes)
-        held = _corroborated(x, y, w, keep, fit_subset, initial_pz_psia)
+        keep, outliers = screen_surveys(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes)
+        held = corroborated(x, y, w, keep, fit_subset, initial_pz_psia)
         if held is not None:  # screen again with it held; the notes are the second screen's
             screen_notes = []
-            keep, outliers = _screen(x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes, held)
+            keep, outliers = screen_surveys(
+                x, y, w, d, anchor_pz_psia, ce_per_psi, groups, need, screen_notes, held
+            )
             screen_notes.append(
                 "The survey before production agrees with the stated initial pressure: kept in the "
                 "line although it lies off it (the rule sets aside bad readings, not the initial state)."
@@ -283,7 +275,7 @@ def estimate_pz(
         notes.extend(screen_notes)
     fit = fit_subset(keep)
     a, b, ce = fit.phi
-    _refuse_unless_declining(fit, x[keep], anchored, confidence_level, min_depletion_frac)
+    refuse_unless_declining(fit, x[keep], anchored, confidence_level, min_depletion_frac)
     level = confidence_level
     t = t_multiplier(level, fit.dof)
     phi_star = None
@@ -335,7 +327,7 @@ def estimate_pz(
                     else "more support than rock and water expansion can give (an aquifer?)."
                 )
             )
-    points = _point_statuses(fit, x, y, d, keep, outliers, labels)
+    points = point_statuses(fit, x, y, d, keep, outliers, labels)
     return PzEstimate(
         method=method_key(weighted, anchored, overpressure_mode),
         title=_method_title(weighted, anchored, overpressure_mode),
@@ -365,145 +357,13 @@ def estimate_pz(
         remaining_range_bscf=rem_u,
         cumulative_gas_bscf=float(cumulative_gas_bscf),
         abandonment_pz_psia=float(pz_a * (1.0 - ce * abandonment_pressure_drop_psi)),
-        depletion_frac=_depletion(fit, x[keep]),
+        depletion_frac=depletion_frac(fit, x[keep]),
         bootstrap_declining_frac=declining,
         residual_runs=runs_test(fit.lin.residual[np.argsort(x[keep], kind="stable")]),
         band=line_band(fit, giip_u, eur, t, level),
         points=points,
         notes=tuple(notes),
     )
-
-
-#: Residual widths within which a survey before production agrees with the stated pi/zi
-#: (the diagnosis' own ``outlier_sigma``; common practice, not a published value).
-RECORD_SIGMA = 4.0
-#: Gas produced before a survey [Bscf] below which it reads the initial state.
-BEFORE_PRODUCTION_BSCF = 1e-6
-
-
-def _corroborated(x, y, w, keep, fit_subset, initial_pz_psia) -> np.ndarray | None:
-    """Surveys before production [Gp = 0] that the screen set aside although they lie within
-    :data:`RECORD_SIGMA` residual widths of the stated pi/zi [psia]; None when there are none."""
-    if initial_pz_psia is None or keep.all():
-        return None
-    early = (~keep) & (x <= BEFORE_PRODUCTION_BSCF)
-    if not early.any():
-        return None
-    sigma = fit_subset(keep).lin.sigma
-    if not (np.isfinite(sigma) and sigma > 0):
-        return None
-    agree = early & (np.abs(y - initial_pz_psia) * np.sqrt(w) <= RECORD_SIGMA * sigma)
-    return agree if agree.any() else None
-
-
-def _screen(x, y, w, d, anchor, ce, groups, need, notes, held=None):
-
-    design, offset = screen_design(x, y, w, d, anchor=anchor, ce=ce)
-    fits = linear_subset_fits(design, y, w, offset)
-
-    def run(protected):
-        return robust_outlier_screen(
-            fits,
-            x.size,
-            design.shape[1],
-            alpha=OUTLIER_ALPHA,
-            max_fraction=OUTLIER_MAX_FRACTION,
-            min_keep=need,
-            protected=protected,
-        )
-
-    screen = run(held)
-    if groups is not None and screen.outliers:
-        g = np.asarray(groups, dtype=object)
-        found = g[[o.index for o in screen.outliers]]
-        wells = sorted({k for k in found if np.sum(found == k) >= 2})
-        if wells:
-            for k in wells:
-                notes.append(
-                    f"{int(np.sum(found == k))} surveys of well {k} lie off the line together: kept in the "
-                    "fit, not treated as isolated gauge errors (a compartment or a gauge offset?)."
-                )
-            screen = run(np.isin(g, wells) if held is None else np.isin(g, wells) | held)
-    if screen.stopped_reason:
-        notes.append("Outlier screening: " + screen.stopped_reason + ".")
-    return screen.keep, screen.outliers
-
-
-def _check_inputs(x, y, w, d, mode, ce, level, samples):
-    if not (x.ndim == 1 and x.shape == y.shape == w.shape == d.shape):
-        raise InputRangeError("gp_bscf, pz_psia, weights and pressure drops must be 1-D and of equal length")
-    for name, v in (("gp_bscf", x), ("pz_psia", y), ("weights", w), ("pressure_drop_psi", d)):
-        bad = np.flatnonzero(~np.isfinite(v))
-        if bad.size:
-            raise InputRangeError(f"{name} is not finite at position(s) {bad.tolist()}")
-    if np.any(y <= 0) or np.any(w <= 0):
-        raise InputRangeError("p/z and weights must be positive")
-    expected = {"off": ce == 0.0, "given": ce is not None and ce > 0, "fitted": ce is None}
-    if mode not in expected:
-        raise InputRangeError(f"unknown overpressure mode {mode!r}; choose one of {sorted(expected)}")
-    if not expected[mode]:
-        raise InputRangeError(f"overpressure mode {mode!r} does not match ce_per_psi={ce!r}")
-    if not 0.5 <= level < 1.0:
-        raise InputRangeError(f"confidence level must be at least 0.5 and below 1, got {level}")
-    if samples != 0 and samples < 100:
-        raise InputRangeError(f"bootstrap_samples must be 0 (off) or at least 100, got {samples}")
-
-
-def _depletion(fit: TankLineFit, x) -> float:
-    a, b, _ = fit.phi
-    return float(-b * x.max() / a)
-
-
-def _refuse_unless_declining(fit: TankLineFit, x, anchored, level, min_frac):
-    a, b, _ = fit.phi
-    se_b = float(np.sqrt(fit.phi_cov[1, 1]))
-    t = t_multiplier(level, fit.dof)
-    if b >= 0:
-        raise InsufficientDataError(
-            f"p/z does not fall with production (slope {b:+.1f} ± {t * se_b:.1f} psia/Bscf): "
-            "no tank volume can be extrapolated"
-        )
-    frac = _depletion(fit, x)
-    if frac < min_frac:
-        raise InsufficientDataError(
-            f"too little depletion to judge: the p/z line has fallen {100 * frac:.1f} % below "
-            f"{'pi/zi' if anchored else 'its intercept'} by the last survey; at least "
-            f"{100 * min_frac:.0f} % is needed before it may be extrapolated"
-        )
-    if abs(b) <= t * se_b:
-        raise InsufficientDataError(
-            f"the p/z decline is within the survey scatter (slope {b:.1f} ± {t * se_b:.1f} psia/Bscf "
-            f"at {100 * level:.0f} %): the data do not bound GIIP"
-        )
-
-
-def _point_statuses(fit, x, y, d, keep, outliers, labels) -> tuple[PointStatus, ...]:
-    a, b, ce = fit.phi
-    f = 1.0 - ce * d
-    fitted = (a + b * x) / f
-    why = {o.index: o for o in outliers}
-    out = []
-    for i in range(x.size):
-        o = why.get(i)
-        reason = None
-        if o is not None:
-            side = "below" if o.residual < 0 else "above"
-            reason = (
-                f"p/z {y[i]:,.0f} psia is {abs(o.residual):,.0f} psia {side} the line through the "
-                f"used points, {abs(o.studentized):.1f} σ; the limit for {o.n_tested} surveys is "
-                f"{o.threshold:.1f} σ (Bonferroni, 5 % family-wise)"
-            )
-        out.append(
-            PointStatus(
-                index=i if labels is None else int(labels[i]),
-                status="used" if keep[i] else "outlier",
-                reason=reason,
-                residual_pz_psia=float(y[i] - fitted[i]),
-                studentized=float(o.studentized) if o else None,
-                corrected_pz_psia=float(y[i] * f[i]),
-            )
-        )
-    return tuple(out)
 
 
 def method_key(weighted, anchored, mode) -> str:

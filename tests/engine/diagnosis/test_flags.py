@@ -258,7 +258,7 @@ def test_data_quality_flags():
         in flags["data_outliers"].reason
     )
     # docs/flags.md: surveys beyond outlier_sigma (4) noise widths. The p/z estimate sets aside
-    # surveys by its own Bonferroni rule (5 % family-wise, about 3.5 widths for 40 surveys);
+    # surveys by its own Bonferroni rule (1 % family-wise, about 3.9 widths for 40 surveys);
     # those nearer than 4 widths are not data-quality findings (a 3.9 sigma draw of normal
     # noise turned up in 1 of 10 forward-model condensate fields, benchmarks/bench_accuracy.py).
     near = Outlier("CD-3", 15535.0, -48.0, 3.9, "static", "good")

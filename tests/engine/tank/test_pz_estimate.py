@@ -261,3 +261,17 @@ def test_fit_pz_line_still_works_for_simple_callers():
     assert line.giip_bscf == pytest.approx(13.962, abs=1e-3)
     assert line.gp_at_pz_bscf(0.0) == pytest.approx(line.giip_bscf)
     assert fit_pz_line([0.0, 1.0], [2000.0, 1800.0]).giip_bscf == pytest.approx(10.0)
+
+
+def test_a_set_aside_survey_names_the_rule_s_own_family_wise_level():
+    # The reason said "5 % family-wise" after the rule moved to 1 % (engine 0.6.3).
+    from server.engine.tank.pz_screen import OUTLIER_ALPHA
+
+    rng = np.random.default_rng(3)
+    gp = np.linspace(1.0, 60.0, 30)
+    pz = 5000.0 * (1.0 - gp / 150.0) + rng.normal(0.0, 10.0, gp.size)
+    pz[12] -= 400.0
+    est = estimate_pz(gp, pz, abandonment_pz_psia=500.0, cumulative_gas_bscf=60.0, bootstrap_samples=0)
+    reasons = [p.reason for p in est.points if p.status == "outlier"]
+    assert len(reasons) == 1
+    assert f"Bonferroni, {100 * OUTLIER_ALPHA:.0f} % family-wise" in reasons[0] and OUTLIER_ALPHA == 0.01
