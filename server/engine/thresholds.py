@@ -28,6 +28,7 @@ class FlagThresholds:
     unidentified_model_delta_aicc: float = 30.0  # ... or by this when its parameters are undetermined
     comparable_delta_aicc: float = 2.0  # models closer than this to the best fit comparably
     overpressure_gradient_psi_per_ft: float = 0.55  # initial pressure / datum depth
+    normal_rock_max_ce_per_psi: float = 1e-5  # most rock and water expansion of normally pressured rock
     curvature_p_value: float = 0.01  # significance of the p/z bend
     cole_p_value: float = 0.01  # a Cole plot "rising" by the Cole rule must also be this significant
     cole_min_change_frac: float = 0.02  # ... and rise by at least this share across the production
@@ -87,6 +88,12 @@ THRESHOLD_LIMITS: dict[str, ThresholdLimits] = {
     "comparable_delta_aicc": ThresholdLimits(0.5, 10.0, "AICc", "models closer than this fit comparably"),
     "overpressure_gradient_psi_per_ft": ThresholdLimits(
         0.44, 1.0, "psi/ft", "initial pressure / datum depth at or above which a field is overpressured"
+    ),
+    "normal_rock_max_ce_per_psi": ThresholdLimits(
+        0.0,
+        1e-3,
+        "1/psi",
+        "most rock and water expansion of normally pressured rock (more points to an aquifer)",
     ),
     "curvature_p_value": ThresholdLimits(1e-6, 0.2, "p-value", "significance of the p/z bend"),
     "cole_p_value": ThresholdLimits(1e-6, 0.2, "p-value", "significance of a rising Cole plot"),

@@ -142,7 +142,7 @@ def diagnose_field(
         state.noise_psia,
         _pz_slope(inputs, prepared),
     )
-    evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, off)
+    evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, off, fits)
     labels = tuple(p.compartment for p in prepared.points if p.included)
     flags = raise_flags(evidence, th)
     return Diagnosis(
@@ -203,7 +203,9 @@ def _cole_plots(inputs: FieldInputs, prepared: PreparedData) -> tuple[ColePlot, 
     return (plain,) if modified is None else (plain, modified)
 
 
-def _evidence(inputs, prepared, state, comparison, wells, headline, cole, given_outliers) -> Evidence:
+def _evidence(
+    inputs, prepared, state, comparison, wells, headline, cole, given_outliers, fits=()
+) -> Evidence:
     th = inputs.flag_thresholds
     pts = [p for p in prepared.points if p.included]
     outliers = state.outliers if given_outliers is None else tuple(given_outliers)
@@ -239,6 +241,7 @@ def _evidence(inputs, prepared, state, comparison, wells, headline, cole, given_
         longest_survey_gap_days=_survey_gap(pts, prepared),
         longest_production_period_days=_longest_period(prepared),
         fluid_warnings=prepared.fluid_warnings,
+        fitted_ce_per_psi=next((f.params.get("ce_per_psi") for f in fits if f.name == "tank_ce"), None),
     )
 
 

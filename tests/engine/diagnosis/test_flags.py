@@ -316,3 +316,37 @@ def test_a_gas_gravity_to_check_is_a_data_quality_flag():
         text,
     )
     assert codes(_ev()) == []
+
+
+def test_support_that_grows_with_the_pressure_drop_on_a_normally_pressured_field_is_an_aquifer():
+    # Forward model (benchmarks/accuracy_cases.py): a pot aquifer, condensed water only, 0.455
+    # psi/ft. Before engine 0.6.6 p/z bent down (p ~ 2e-7), a constant-ce tank beat the line by
+    # 20 AICc with c_e 4.5e-5 1/psi, and no flag fired: the overpressure rule left the bend to
+    # the aquifer models, which were not determined. The straight line read 239.5 Bscf (+20 %).
+    from benchmarks.accuracy_cases import CASE_BY_NAME
+    from server.engine.analysis import analyse_field
+    from server.engine.diagnosis.flag_rules import compressible_support
+
+    built = CASE_BY_NAME["weak_aquifer_dry"].build(29)
+    result = analyse_field(built.inputs)
+    ev, th = result.diagnosis.evidence, built.inputs.flag_thresholds
+    gain, ce = compressible_support(ev, th)
+    assert gain >= th.model_preference_delta_aicc and ce > th.normal_rock_max_ce_per_psi
+    flag = next(f for f in result.flags if f.code == "aquifer_signature")
+    assert "normally pressured" in flag.reason and "small aquifer" in flag.reason
+    assert result.basis.model in ("aquifer_pot", "tank_ce")
+    assert abs(result.giip_best_bscf / built.truth.giip_bscf - 1.0) < 0.08
+
+
+@pytest.mark.parametrize("case", ["volumetric", "overpressured", "condensate", "compartments"])
+def test_no_field_without_an_aquifer_shows_compressible_support(case):
+    # The three signs together appear on aquifer fields only (bench_accuracy seeds 1-40); an
+    # overpressured field has the same balance but its gradient explains it.
+    from benchmarks.accuracy_cases import CASE_BY_NAME
+    from server.engine.analysis import analyse_field
+    from server.engine.diagnosis.flag_rules import compressible_support
+
+    for seed in range(1, 11):
+        built = CASE_BY_NAME[case].build(seed)
+        result = analyse_field(built.inputs)
+        assert compressible_support(result.diagnosis.evidence, built.inputs.flag_thresholds) is None
