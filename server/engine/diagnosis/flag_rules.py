@@ -269,10 +269,13 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
     # aquifer clearly beating the constant-ce tank point to an aquifer. A neighbour tank
     # explains extra support as well as an aquifer does.
     ce = ev.comparison.row("tank_ce") if ev.comparison else None
+    # "Clearly": by the preference margin (engine 0.6.6; by comparable_delta_aicc before, when a
+    # Fetkovich aquifer 6 AICc ahead of the constant-ce tank on precise data of an overpressured
+    # field raised an aquifer flag beside the overpressure one, bench_accuracy seed 53).
     beats_ce = (
         model is not None
         and model.name != "aquifer_pot"
-        and (ce is None or ce.aicc - model.aicc >= th.comparable_delta_aicc)
+        and (ce is None or ce.aicc - model.aicc >= th.model_preference_delta_aicc)
     )
     explained_by_overpressure = _overpressured(ev, th) and not cole and not beats_ce
     # Compartments divide the mapped volume and do not add to it: a neighbour tank whose total
