@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+import re
 from collections.abc import Iterator
 from contextlib import contextmanager
 
@@ -11,6 +13,8 @@ from sqlalchemy.orm import Session, sessionmaker
 
 WRITE_OPTION = "tankbook_write"  # execution option: this transaction will write
 _JSON_OPTIONS = orjson.OPT_NON_STR_KEYS | orjson.OPT_SERIALIZE_NUMPY
+#: 20 or more digits in a row outside a fraction or exponent: an integer that may exceed 64 bits.
+_LONG_INTEGER = re.compile(r"(?<![\d.eE+-])-?\d{20,}(?![\d.eE])")
 
 
 def json_dumps(value) -> str:
@@ -18,13 +22,20 @@ def json_dumps(value) -> str:
     round trip), NaN and infinity as null (PostgreSQL's json type refuses them anyway). About
     ten times faster than ``json.dumps`` on an estimate's 150 KB detail, which every
     recompute writes (issue 17)."""
-    return orjson.dumps(value, default=_plain, option=_JSON_OPTIONS).decode()
+    try:
+        return orjson.dumps(value, default=_plain, option=_JSON_OPTIONS).decode()
+    except orjson.JSONEncodeError:  # e.g. an integer beyond 64 bits: the standard library's text
+        return json.dumps(value)
 
 
 def json_loads(value):
-    """A JSON column's value; SQLite hands back a stored JSON number as a number."""
+    """A JSON column's value; SQLite hands back a stored JSON number as a number. orjson reads an
+    integer beyond 64 bits as a float, so text holding one (only a fallback of
+    :func:`json_dumps` writes it) is read by the standard library."""
     if isinstance(value, int | float):
         return value
+    if _LONG_INTEGER.search(value if isinstance(value, str) else bytes(value).decode()):
+        return json.loads(value)
     return orjson.loads(value)
 
 
