@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import json
-import re
 from collections.abc import Iterator
 from contextlib import contextmanager
 
@@ -13,30 +12,31 @@ from sqlalchemy.orm import Session, sessionmaker
 
 WRITE_OPTION = "tankbook_write"  # execution option: this transaction will write
 _JSON_OPTIONS = orjson.OPT_NON_STR_KEYS | orjson.OPT_SERIALIZE_NUMPY
-#: 20 or more digits in a row outside a fraction or exponent: an integer that may exceed 64 bits.
-_LONG_INTEGER = re.compile(r"(?<![\d.eE+-])-?\d{20,}(?![\d.eE])")
 
 
 def json_dumps(value) -> str:
     """JSON text for a JSON column: compact, numbers as ``json.dumps`` writes them (shortest
     round trip), NaN and infinity as null (PostgreSQL's json type refuses them anyway). About
     ten times faster than ``json.dumps`` on an estimate's 150 KB detail, which every
-    recompute writes (issue 17)."""
+    recompute writes (issue 17). What orjson cannot write (an integer beyond 64 bits) is the
+    standard library's text after one space, which :func:`json_loads` reads back exactly."""
     try:
         return orjson.dumps(value, default=_plain, option=_JSON_OPTIONS).decode()
-    except orjson.JSONEncodeError:  # e.g. an integer beyond 64 bits: the standard library's text
-        return json.dumps(value)
+    except orjson.JSONEncodeError:
+        return " " + json.dumps(value)
 
 
 def json_loads(value):
-    """A JSON column's value; SQLite hands back a stored JSON number as a number. orjson reads an
-    integer beyond 64 bits as a float, so text holding one (only a fallback of
-    :func:`json_dumps` writes it) is read by the standard library."""
+    """A JSON column's value. SQLite hands back a stored JSON number as a number. Text that
+    orjson did not write (the fallback's leading space, or the standard library's ``": "``
+    separators of values stored before issue 17) is read by the standard library, which keeps
+    an integer beyond 64 bits exact where orjson would read a float."""
     if isinstance(value, int | float):
         return value
-    if _LONG_INTEGER.search(value if isinstance(value, str) else bytes(value).decode()):
-        return json.loads(value)
-    return orjson.loads(value)
+    text = value if isinstance(value, str) else bytes(value).decode()
+    if text[:1] == " " or '": ' in text:
+        return json.loads(text)
+    return orjson.loads(text)
 
 
 def _plain(value):

@@ -203,9 +203,7 @@ def _cole_plots(inputs: FieldInputs, prepared: PreparedData) -> tuple[ColePlot, 
     return (plain,) if modified is None else (plain, modified)
 
 
-def _evidence(
-    inputs, prepared, state, comparison, wells, headline, cole, given_outliers, fits=()
-) -> Evidence:
+def _evidence(inputs, prepared, state, comparison, wells, headline, cole, given_outliers, fits) -> Evidence:
     th = inputs.flag_thresholds
     pts = [p for p in prepared.points if p.included]
     outliers = state.outliers if given_outliers is None else tuple(given_outliers)
