@@ -365,3 +365,23 @@ def test_an_overpressured_field_needs_a_clear_margin_before_an_aquifer_is_flagge
     assert {f.code for f in result.flags} == {"overpressure_signature"}
     assert result.basis.model == "tank_ce"
     assert abs(result.giip_best_bscf / built.truth.giip_bscf - 1.0) < 0.05
+
+
+def test_the_normal_rock_threshold_decides_the_compressible_support_flag():
+    # The team setting changes the result it names: raised above the fitted c_e (4.5e-5 1/psi on
+    # this pot-aquifer field), normally pressured rock could give that support, and neither the
+    # flag nor the basis moves off the straight line.
+    import dataclasses
+
+    from benchmarks.accuracy_cases import CASE_BY_NAME
+    from server.engine.analysis import analyse_field
+
+    inputs = CASE_BY_NAME["weak_aquifer_dry"].build(29).inputs
+    default = analyse_field(inputs)
+    assert "aquifer_signature" in {f.code for f in default.flags}
+    raised = dataclasses.replace(
+        inputs, flag_thresholds=dataclasses.replace(inputs.flag_thresholds, normal_rock_max_ce_per_psi=1e-4)
+    )
+    result = analyse_field(raised)
+    assert "aquifer_signature" not in {f.code for f in result.flags}
+    assert result.basis.model == "single_tank"
