@@ -9,7 +9,8 @@ RUN apt-get update -qq \
 RUN pip install --no-cache-dir uv==0.13.8
 COPY pyproject.toml uv.lock README.md ./
 COPY server ./server
-RUN uv sync --frozen --no-dev --compile-bytecode && .venv/bin/python -m compileall -q server && ln -s /app/.venv/bin/tankbook /usr/local/bin/tankbook
+RUN uv sync --frozen --no-dev --compile-bytecode && .venv/bin/python -m compileall -q server \
+    && .venv/bin/python -m server.engine.warm && ln -s /app/.venv/bin/tankbook /usr/local/bin/tankbook
 COPY alembic.ini ./
 COPY migrations ./migrations
 COPY templates ./templates

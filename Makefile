@@ -13,6 +13,7 @@ $(UV):
 .venv/.synced: pyproject.toml uv.lock | $(UV)
 	$(UV) sync --frozen --compile-bytecode --python $(PYTHON)
 	.venv/bin/python -m compileall -q server
+	.venv/bin/python -m server.engine.warm
 	touch $@
 
 setup: .venv/.synced

@@ -77,6 +77,9 @@ def _work(url: str, name: str) -> tuple[int, float]:
     transaction must take the write lock before it reads (``jobs.write_first``, which the
     runner does), or it fails at once with "database is locked" when the other worker
     committed meanwhile (the benchmark failed so, 2 runs of 2, before issue 17)."""
+    from server.engine import accel
+
+    accel.enable()  # as `tankbook worker` does
     db = Database(url)
     ran = 0
     cpu0 = time.process_time()

@@ -208,6 +208,14 @@ def cmd_set_password(args) -> int:
     return _account_command(args, role=None)
 
 
+def _compiled_engine() -> None:
+    """Switch on the engine's compiled kernels in a process that recomputes many fields (about
+    0.5 s to load, won back after a few fields; server/engine/accel.py)."""
+    from .engine import accel
+
+    accel.enable()
+
+
 def cmd_recompute(args) -> int:
     from sqlalchemy import select
 
@@ -223,6 +231,8 @@ def cmd_recompute(args) -> int:
             stmt = stmt.where(Field.name.in_(args.field))
         ids = list(session.execute(stmt).scalars())
         jobs.enqueue_field_recompute(session, ids, reason="command line")
+    if len(ids) > 1:
+        _compiled_engine()
     ran = runner.drain(db)
     print(f"recomputed {ran} field(s)")
     db.dispose()
@@ -251,6 +261,7 @@ def cmd_serve(args) -> int:
         forwarded_allow_ips=settings.forwarded_allow_ips,
     )
     server = uvicorn.Server(config)
+    _compiled_engine()  # the app's worker thread recomputes fields
     if args.first_admin:
         threading.Thread(
             target=_announce_first_admin, args=(server, settings, url), name="first-admin", daemon=True
@@ -269,6 +280,7 @@ def cmd_worker(args) -> int:
     settings = _settings()
     db = Database(settings.database_url)
     _pin(settings, db)
+    _compiled_engine()
     worker = Worker(
         db,
         poll_seconds=settings.job_poll_seconds,

@@ -44,7 +44,9 @@ LAYERS = {
 #: Engine topics by rank: a topic imports itself or lower ranks only, so the topics form a
 #: ladder a reader can climb (kernels, then PVT, ...). Kernels are shared by every topic.
 ENGINE_TOPICS = {
-    **dict.fromkeys(("errors", "units", "stats", "outliers", "modelfit", "thresholds", "plan"), 0),
+    **dict.fromkeys(
+        ("errors", "units", "stats", "outliers", "modelfit", "thresholds", "plan", "accel", "bounded_lm"), 0
+    ),
     "pvt": 1,
     "volumetrics": 1,
     "inputs": 2,
@@ -56,8 +58,9 @@ ENGINE_TOPICS = {
     "headline": 7,
     "forecast": 8,
     "analysis": 9,
+    "warm": 10,  # compiles the kernels of aquifer and compartments (python -m server.engine.warm)
 }
-KERNELS = ("errors", "units", "stats", "outliers", "modelfit", "thresholds", "plan")
+KERNELS = ("errors", "units", "stats", "outliers", "modelfit", "thresholds", "plan", "accel", "bounded_lm")
 
 #: The synthetic forward models are the estimators' independent oracles: they may use the
 #: fluid properties and units, never an estimator.
@@ -167,7 +170,8 @@ def test_layers_are_imported_one_way():
     [("server.engine", ("server.engine",)), ("server.synthetic", SYNTHETIC_MAY_USE)],
 )
 def test_engine_and_synthetic_import_only_numerics(package, allowed_internal):
-    assert foreign_imports(SERVER, (package,), {"numpy", "scipy"}, allowed_internal) == []
+    # numba: the engine's optional compiled kernels (server/engine/accel.py, issue 17)
+    assert foreign_imports(SERVER, (package,), {"numpy", "scipy", "numba"}, allowed_internal) == []
 
 
 def test_engine_topics_import_down_the_ladder():

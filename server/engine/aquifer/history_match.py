@@ -3,8 +3,9 @@
 For each aquifer model (pot, Fetkovich, van Everdingen-Hurst radial; :mod:`.models`)
 the tank balance is solved for the pressure at every step of a uniform grid (about
 monthly, :mod:`.tank_solver`), with the influx depending on the whole pressure history,
-and the parameters are fitted by nonlinear least squares (``scipy.optimize.least_squares``)
-to p/z at the included surveys, weighted by the survey weights. Starting values come
+and the parameters are fitted by nonlinear least squares (bounded Levenberg-Marquardt,
+:mod:`..bounded_lm`; scipy's ``least_squares`` before issue 17's fourth round, now the tests'
+reference) to p/z at the included surveys, weighted by the survey weights. Starting values come
 from the Havlena-Odeh straight line on the observed pressures, scanned over the aquifer
 time constant (and r_eD) (:func:`.havlena_odeh.havlena_odeh_scan`).
 
@@ -37,8 +38,8 @@ reference §3.5 (simultaneous solution; regression parameters strongly correlate
 from __future__ import annotations
 
 import numpy as np
-from scipy.optimize import least_squares
 
+from ..bounded_lm import bounded_least_squares
 from ..errors import InsufficientDataError
 from ..inputs import FieldInputs
 from ..modelfit import ModelFit
@@ -114,22 +115,17 @@ def _fit(inputs: FieldInputs, grid: TankGrid, spec: AquiferModelSpec, reds) -> M
     problem = MatchProblem(grid, spec, red, fit_pi, s_ref, along_valley=True)
     x0, bounds = problem.from_plain(x0, bounds)
 
-    def stop(intermediate_result):  # scipy calls it after each iteration
-        # least_squares ignores what a callback returns; only StopIteration ends the fit
-        # (scipy.optimize._lsq.trf, _call_callback_maybe_halt). Returning True, as before
-        # issue 17's second round, never stopped a fit: each ran to the tolerances or the cap.
-        if problem.settled(intermediate_result.x, intermediate_result.fun, bounds):
+    def stop(x, resid_w):  # after each accepted step
+        if problem.settled(x, resid_w, bounds):
             raise StopIteration
 
     # Tolerances: a relative RSS change of 1e-5 moves AIC by n x 1e-5, far below what separates
     # models; the stopping rule (Problem.settled) usually ends the fit first.
-    result = least_squares(
+    result = bounded_least_squares(
         problem.residuals,
+        problem.jacobian,
         x0,
-        jac=problem.jacobian,
-        bounds=bounds,
-        method="trf",
-        x_scale="jac",
+        bounds,
         ftol=1e-5,
         xtol=1e-6,
         gtol=1e-8,

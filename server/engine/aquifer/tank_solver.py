@@ -21,6 +21,7 @@ import numpy as np
 from scipy.interpolate import CubicSpline
 from scipy.linalg import LinAlgError, get_lapack_funcs
 
+from .. import accel
 from ..errors import InsufficientDataError
 from ..inputs import FieldInputs
 from ..prepare.cumulative import cumulative_at_times, production_start_t_days
@@ -273,6 +274,9 @@ class TankSolver:
         # The interpolation onto the survey times, t_1..t_N columns, contiguous: a product with
         # the strided view costs more than the rest of observe().
         self._obs_steps = np.ascontiguousarray(grid.obs_interp[:, 1:])
+        self._band_offsets = np.array([off for off, _ in influx.bands], dtype=np.int64)
+        self._band_coefs = np.array([coef for _, coef in influx.bands], dtype=float)
+        self._compiled_arrays = None  # the table and production as the compiled solve takes them
 
     def pz_initial(self, pi):
         """p_i/z_i [psia] (the table's value, remembered for the last p_i)."""
@@ -323,6 +327,8 @@ class TankSolver:
         m = dwe_dp_column(kernel_column, self.influx.bands)
         if p_start is None:  # the volumetric history
             p_start = tab.p_of_pz(tab.pz(pi) * np.clip(1.0 - g.gp_scf / g_scf, 0.0, 1.0))
+        if accel.enabled():
+            return self._solve_compiled(g_scf, pi, kernel_column, m, p_start)
         p_lo, p_hi = float(tab.p[0]), float(tab.p[-1])
         p = np.clip(np.asarray(p_start, float), p_lo, p_hi)
         converged = False
@@ -343,6 +349,25 @@ class TankSolver:
                 converged = True
                 break
         return TankState(p, self.influx_at(p, pi, kernel_column), m, converged)
+
+    def _solve_compiled(self, g_scf, pi, kernel_column, m, p_start) -> TankState:
+        """:meth:`solve` compiled (:mod:`.compiled`): the same method and stopping rule."""
+        from .compiled import newton_history  # numba: imported only on this path
+
+        if self._compiled_arrays is None:  # writable copies: one compiled signature for all
+            g, tab = self.grid, self.table
+            self._compiled_arrays = tuple(
+                np.array(a, dtype=float) for a in (tab.p, tab.phi, tab.dphi, g.wp_rb, g.gp_scf)
+            )
+        tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._compiled_arrays
+        p = np.array(p_start, dtype=float)  # a copy: the compiled solve works in place
+        converged = newton_history(
+            np.array(kernel_column, dtype=float), m, self._band_offsets, self._band_coefs, float(pi), tab_p,
+            tab_phi, tab_dphi, float(self.grid.ce_per_psi), wp_rb, gp_scf, float(g_scf),
+            float(self.gas_pore_volume_rb(g_scf, pi)), float(self.pz_initial(pi)), p, _NEWTON_TOL_PSI,
+            _NEWTON_MAX_ITER,
+        )  # fmt: skip
+        return TankState(p, self.influx_at(p, pi, kernel_column), m, bool(converged))
 
     def observe(self, we, g_scf, pi, p_grid):
         """Model p/z at the survey times [psia]."""

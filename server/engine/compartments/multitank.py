@@ -56,6 +56,14 @@ class PotentialTable:
             object.__setattr__(self, "_slopes", cached)
         return cached
 
+    def arrays(self) -> tuple[np.ndarray, np.ndarray]:
+        """(Phi, slopes) as float arrays, for compiled code (cached)."""
+        cached = self.__dict__.get("_arrays")
+        if cached is None:
+            cached = (np.array(self.phi_psi2, dtype=float), np.array(self.slopes, dtype=float))
+            object.__setattr__(self, "_arrays", cached)
+        return cached
+
     @property
     def pz_max_psia(self) -> float:
         return self.pz0_psia + self.step_psia * (len(self.phi_psi2) - 1)

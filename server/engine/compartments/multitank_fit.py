@@ -89,6 +89,14 @@ class _Problem:
     sqrt_w: np.ndarray
     potential: PotentialTable
 
+    def step_arrays(self) -> tuple[np.ndarray, np.ndarray]:
+        """(step_days, withdrawal_scf) as float arrays, for the compiled march (cached)."""
+        cached = self.__dict__.get("_step_arrays")
+        if cached is None:
+            cached = (np.array(self.step_days, dtype=float), np.array(self.withdrawal_scf, dtype=float))
+            object.__setattr__(self, "_step_arrays", cached)
+        return cached
+
 
 def _problem(inputs, prepared, layout, max_steps, potential, viscosity_cp_of_p, step_days=91.3) -> _Problem:
     t_obs, gp_obs, y, w = prepared.arrays()
@@ -209,12 +217,7 @@ def _march_two(theta, prob: _Problem) -> tuple[np.ndarray, np.ndarray]:
     lgam = float(theta[3])
     g = np.exp(np.clip(lg, *LOG_GIIP_BOUNDS)) * 1e9
     gam = float(np.exp(np.clip(lgam, *LOG_GAMMA_BOUNDS)))  # as _predict computes it
-    # Python floats: the march is scalar code, and numpy scalars would make every operation
-    # in it several times slower (the same values, bit for bit).
-    rows = simulate_two_with_sensitivities(
-        float(g[0]), float(g[1]), gam, pzi, prob.potential, prob.step_days, prob.withdrawal_scf
-    )
-    march = np.fromiter(itertools.chain.from_iterable(rows), float, 10 * len(rows)).reshape(-1, 10)
+    march = simulate_two_with_sensitivities(g[0], g[1], gam, pzi, prob.potential, *prob.step_arrays())
     u = march[:, :2]  # (steps + 1, 2)
     du = march[:, 2:].reshape(-1, 2, 4)  # (steps + 1, tank, by pzi, G0, G1, Gamma)
     inside = np.array(

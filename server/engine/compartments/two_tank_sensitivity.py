@@ -19,6 +19,9 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
+from .. import accel
 from .multitank import PotentialTable
 
 #: Order of the sensitivity columns: the common initial p/z [psia], G0, G1 [scf], Gamma.
@@ -29,27 +32,46 @@ def simulate_two_with_sensitivities(g0, g1, gam, pzi, pot: PotentialTable, step_
     """Tank fractions (u0, u1) at the start and every step end, with their derivatives.
 
     Same scheme and arguments as :func:`.multitank.simulate_star_tanks` for two tanks
-    (``g0``, ``g1`` [scf], ``gam`` the connection, ``pzi`` [psia]).
+    (``g0``, ``g1`` [scf], ``gam`` the connection, ``pzi`` [psia]; ``step_days`` and
+    ``withdrawal_scf`` of shape (steps,) and (steps, 2)). Interpreted on Python lists, or
+    compiled when :mod:`..accel` is enabled (the same arithmetic in the same order).
 
     Returns
     -------
-    list of tuple
-        One flat tuple ``(u0, u1, du0..., du1...)`` of 10 floats per step end (and the
-        start): u, then d u0 and d u1 by (p/z_i [1/psia], G0 [1/scf], G1 [1/scf], Gamma)
-        in the order of :data:`PARAMETERS` (flat, so ``numpy.array`` converts it quickly).
+    numpy.ndarray
+        Shape (steps + 1, 10): per step end (and the start) u0, u1, then d u0 and d u1 by
+        (p/z_i [1/psia], G0 [1/scf], G1 [1/scf], Gamma) in the order of :data:`PARAMETERS`.
     """
-    phi, slope = pot.phi_psi2, pot.slopes
-    h = pot.step_psia
+    args = (float(g0), float(g1), float(gam), float(pzi))
+    n = len(step_days)
+    if accel.enabled():
+        phi, slope = pot.arrays()
+        out = np.zeros((n + 1, 10))
+        out[0, :2] = 1.0
+        steps = np.asarray(step_days, dtype=float)
+        withdrawn = np.asarray(withdrawal_scf, dtype=float).reshape(-1, 2)
+        accel.compiled(_march)(
+            *args, phi, slope, float(pot.step_psia), float(pot.pz0_psia), steps, withdrawn, out
+        )
+        return out
+    # Python floats and lists: numpy scalars would make every operation several times slower.
+    out = [[1.0, 1.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0]] + [[0.0] * 10 for _ in range(n)]
+    steps = step_days.tolist() if isinstance(step_days, np.ndarray) else step_days
+    withdrawn = withdrawal_scf.tolist() if isinstance(withdrawal_scf, np.ndarray) else withdrawal_scf
+    _march(*args, pot.phi_psi2, pot.slopes, pot.step_psia, pot.pz0_psia, steps, withdrawn, out)
+    return np.array(out)
+
+
+def _march(g0, g1, gam, pzi, phi, slope, h, x0, step_days, withdrawal_scf, out):
+    """The march on sequences (lists in Python, arrays compiled): fills ``out`` (rows of 10)."""
     inv_h = 1.0 / h
-    x0 = pot.pz0_psia
     last = len(phi) - 2
-    expm1, exp = math.expm1, math.exp
     k0, k1 = pzi / g0, pzi / g1
     u0 = u1 = 1.0
     a0 = a1 = a2 = a3 = 0.0  # du0/d(pzi, g0, g1, gam)
     b0 = b1 = b2 = b3 = 0.0  # du1/d(...)
-    out = [(1.0, 1.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0)]
-    for dt, (w0, w1) in zip(step_days, withdrawal_scf, strict=True):
+    for n in range(len(step_days)):
+        dt, w0, w1 = step_days[n], withdrawal_scf[n][0], withdrawal_scf[n][1]
         x = (pzi * u0 - x0) * inv_h
         i = int(x) if x > 0.0 else 0
         if i > last:
@@ -74,7 +96,11 @@ def simulate_two_with_sensitivities(g0, g1, gam, pzi, pot: PotentialTable, step_
         d0, d1 = s0, s1
         # Predictor: slopes at the start; only the midpoint slopes it picks are used.
         lam = (d1 * k1 + d0 * k0) * a
-        f1, f2 = _phi12(lam, expm1)
+        if lam < 1e-4:  # (1 - e^-lam)/lam and (lam - 1 + e^-lam)/lam^2, by series near 0
+            f1, f2 = 1.0 - lam / 2.0 + lam * lam / 6.0, 0.5 - lam / 6.0 + lam * lam / 24.0
+        else:
+            e = -math.expm1(-lam)
+            f1, f2 = e / lam, (lam - e) / (lam * lam)
         s = a * (f1 * diff + f2 * (d0 * k0 * w0 - d1 * k1 * w1))
         m0 = u0 + (s - w0) / g0
         m1 = u1 - (s + w1) / g1
@@ -86,12 +112,14 @@ def simulate_two_with_sensitivities(g0, g1, gam, pzi, pot: PotentialTable, step_
         d1 = slope[i if i <= last else last]
         # Corrector, with its derivatives.
         lam = (d1 * k1 + d0 * k0) * a
-        f1, f2 = _phi12(lam, expm1)
         if lam < 1e-4:
+            f1, f2 = 1.0 - lam / 2.0 + lam * lam / 6.0, 0.5 - lam / 6.0 + lam * lam / 24.0
             g1p = -0.5 + lam / 3.0
             g2p = -1.0 / 6.0 + lam / 12.0
         else:
-            g1p = (exp(-lam) - f1) / lam
+            e = -math.expm1(-lam)
+            f1, f2 = e / lam, (lam - e) / (lam * lam)
+            g1p = (math.exp(-lam) - f1) / lam
             g2p = (f1 - 2.0 * f2) / lam
         q0, q1 = d0 * k0, d1 * k1
         bterm = q0 * w0 - q1 * w1
@@ -133,13 +161,6 @@ def simulate_two_with_sensitivities(g0, g1, gam, pzi, pot: PotentialTable, step_
         else:
             u1 = 0.0
             b0 = b1 = b2 = b3 = 0.0
-        out.append((u0, u1, a0, a1, a2, a3, b0, b1, b2, b3))
-    return out
-
-
-def _phi12(lam, expm1):
-    """(1 - e^-lam)/lam and (lam - 1 + e^-lam)/lam^2, by series near 0 (as the simulator)."""
-    if lam < 1e-4:
-        return 1.0 - lam / 2.0 + lam * lam / 6.0, 0.5 - lam / 6.0 + lam * lam / 24.0
-    e = -expm1(-lam)
-    return e / lam, (lam - e) / (lam * lam)
+        row = out[n + 1]
+        row[0], row[1], row[2], row[3], row[4] = u0, u1, a0, a1, a2
+        row[5], row[6], row[7], row[8], row[9] = a3, b0, b1, b2, b3

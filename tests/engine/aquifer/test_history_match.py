@@ -176,9 +176,12 @@ def test_a_huge_giip_error_gives_an_unbounded_interval_not_an_overflow():
         assert lognormal_interval(50.0, se, 2.0) == (None, None)
 
 
-def test_the_benchmark_variant_that_overflowed_reports_the_pot_model_unbounded():
+def test_the_benchmark_variant_that_overflowed_reports_the_pot_model_not_determined():
     # Portfolio benchmark variant 54 ("Gorsewick 05"): a pot aquifer fitted to a two-compartment
-    # field has a standard error of G of about 3e4 Bscf; exp(t se/G) overflowed before.
+    # field had a standard error of G of about 3e4 Bscf; exp(t se/G) overflowed before. Where the
+    # fit ends on that flat valley depends on the solver's path (scipy's trust region ended with
+    # an unbounded interval, the bounded Levenberg-Marquardt of issue 17 with a finite, wide one);
+    # either way the analysis runs, the interval is finite or absent, and the model is not determined.
     from benchmarks.bench_portfolio import variants
     from server.engine.analysis import analyse_field
     from tests.engine.cases import demo_field_inputs
@@ -186,7 +189,9 @@ def test_the_benchmark_variant_that_overflowed_reports_the_pot_model_unbounded()
     v = variants(200)[54]
     result = analyse_field(demo_field_inputs(v.name, spec=v, seed=1054))
     pot = next(m for m in result.diagnosis.models if m.name == "aquifer_pot")
-    assert pot.giip_low_bscf is None and pot.giip_high_bscf is None and not pot.identifiable
-    assert pot.notes[0].startswith("GIIP not determined: its interval is unbounded")
+    assert not pot.identifiable
+    assert (pot.giip_low_bscf is None) == (pot.giip_high_bscf is None)
+    if pot.giip_low_bscf is not None:
+        assert np.isfinite(pot.giip_high_bscf) and 0 < pot.giip_low_bscf < pot.giip_bscf < pot.giip_high_bscf
     row = next(r for r in result.diagnosis.comparison.rows if r.name == "aquifer_pot")
-    assert row.giip_low_bscf is None and not row.identifiable
+    assert row.giip_low_bscf == pot.giip_low_bscf and not row.identifiable

@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 from scipy.optimize import least_squares
 
+from server.engine import accel
 from server.engine.compartments import multitank_fit as mf
 from server.engine.compartments.multitank import simulate_star_tanks
 from server.engine.compartments.two_tank_sensitivity import simulate_two_with_sensitivities
@@ -30,8 +31,14 @@ def test_sensitivity_march_gives_the_plain_fractions_bit_for_bit(field):
         pzi = float(rng.uniform(4000.0, 7000.0))
         args = (pzi, prob.potential, prob.step_days, prob.withdrawal_scf)
         plain = np.array(simulate_star_tanks([g0, g1], [gam], *args))
-        march = np.array(simulate_two_with_sensitivities(float(g0), float(g1), gam, *args))
+        march = simulate_two_with_sensitivities(float(g0), float(g1), gam, *args)
         assert np.array_equal(plain, march[:, :2])
+        assert accel.enable()  # compiled (numba): the same arithmetic in the same order
+        try:
+            compiled = simulate_two_with_sensitivities(float(g0), float(g1), gam, *args)
+        finally:
+            accel.disable()
+        assert np.array_equal(compiled, march)
 
 
 def test_march_prediction_is_the_plain_prediction(field):

@@ -205,10 +205,16 @@ def test_check_value_25_true_model_is_comparable_and_the_range_covers_the_truth(
     assert veh.n_params == 4  # infinite aquifer chosen: no r_eD parameter
     assert "aquifer_veh_radial" in cmp.comparable
     assert cmp.preferred == "aquifer_veh_radial" or "do not single out one model" in cmp.statement
-    assert cmp.comparable_giip_low_bscf <= 100.0 <= cmp.comparable_giip_high_bscf
-    assert (
-        f"{cmp.comparable_giip_low_bscf:.1f}-{cmp.comparable_giip_high_bscf:.1f} Bscf across" in cmp.statement
-    )
+    # An open envelope (a comparable model's interval is unbounded: on seed 6 the undetermined
+    # two-tank model sits 1.99-2.01 AICc behind, on the edge of "comparable" by the fits' own
+    # tolerance) contains the truth; a closed one must.
+    low, high = cmp.comparable_giip_low_bscf, cmp.comparable_giip_high_bscf
+    assert (low is None) == (high is None)
+    if low is None:
+        assert "no bounded GIIP range across these models" in cmp.statement
+    else:
+        assert low <= 100.0 <= high
+        assert f"{low:.1f}-{high:.1f} Bscf across" in cmp.statement
     _within_interval(veh, 100.0)
 
 

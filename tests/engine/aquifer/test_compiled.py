@@ -1,0 +1,88 @@
+"""The compiled tank solve (server/engine/aquifer/compiled.py, used when server.engine.accel is
+enabled) against the numpy solve (the default, and the reference) and the influx models of
+influx.py, on the demo's fields for the three aquifer models and strengths from none to strong;
+and the same history match either way."""
+
+import numpy as np
+import pytest
+
+from server.engine import accel
+from server.engine.aquifer.compiled import influx_rb
+from server.engine.aquifer.influx import causal_convolution
+from server.engine.aquifer.models import SPECS, KernelCache
+from server.engine.aquifer.tank_solver import TankSolver, tank_grid
+from server.engine.prepare.points import prepare
+from tests.engine.cases import demo_field_inputs
+
+
+@pytest.fixture(scope="module", params=["Cindervale", "Fallowmere", "Gorsewick"])
+def field(request):
+    inputs = demo_field_inputs(request.param)
+    prepared = prepare(inputs)
+    return inputs, prepared
+
+
+@pytest.fixture
+def grid(field):
+    return tank_grid(*field)
+
+
+def _kernels(grid, spec):
+    red = 5.0 if spec.name == "aquifer_veh_radial" else None
+    kc = KernelCache(spec, float(grid.t_days[0]), grid.n_steps, red)
+    for strength in (0.0, 3e3, 3e4, 3e5):
+        for rate in (1e-4, 1e-2) if spec.has_rate else (None,):
+            yield strength * kc.unit(rate)
+
+
+@pytest.mark.parametrize("model", sorted(SPECS))
+def test_influx_of_the_model_bands_is_the_model_s_own_influx(grid, model):
+    spec = SPECS[model]
+    solver = TankSolver(grid, spec.influx)
+    p = np.linspace(grid.initial_pressure_psia * 0.95, grid.initial_pressure_psia * 0.4, grid.n_steps)
+    for kernel in _kernels(grid, spec):
+        expected = causal_convolution(kernel, spec.influx.drops(grid.initial_pressure_psia, p))
+        got = influx_rb(kernel, solver._band_offsets, solver._band_coefs, grid.initial_pressure_psia, p)
+        assert np.allclose(got, expected, rtol=1e-12, atol=1e-9 * max(1.0, np.abs(expected).max()))
+
+
+def _both(solve, *args):
+    """(compiled, numpy) results of the same call."""
+    assert accel.enable()
+    try:
+        fast = solve(*args)
+    finally:
+        accel.disable()
+    return fast, solve(*args)
+
+
+@pytest.mark.parametrize("model", sorted(SPECS))
+def test_compiled_solve_is_the_numpy_solve(grid, model):
+    spec = SPECS[model]
+    solver = TankSolver(grid, spec.influx)
+    pi = grid.initial_pressure_psia
+    for g_scf in (grid.gp_scf[-1] * 1.3, grid.gp_scf[-1] * 3.0):
+        for kernel in _kernels(grid, spec):
+            cold, cold_ref = _both(solver.solve, g_scf, pi, kernel)
+            assert cold.converged == cold_ref.converged
+            assert np.max(np.abs(cold.p_psia - cold_ref.p_psia)) < 1e-6  # Newton's tolerance 1e-7 psi
+            assert np.allclose(cold.we_rb, cold_ref.we_rb, rtol=1e-9, atol=1e-6)
+            start = cold_ref.p_psia + 3.0  # a warm start, as the fit's tangent prediction gives
+            warm, warm_ref = _both(solver.solve, g_scf, pi, kernel, start)
+            assert warm.converged == warm_ref.converged
+            assert np.max(np.abs(warm.p_psia - warm_ref.p_psia)) < 1e-6
+            assert np.array_equal(start, cold_ref.p_psia + 3.0)  # the caller's start is not changed
+
+
+def test_the_accelerator_is_off_unless_a_process_enables_it():
+    assert not accel.enabled()
+
+
+@pytest.mark.parametrize("model", sorted(SPECS))
+def test_the_history_match_is_the_same_compiled_or_not(field, model):
+    from server.engine.aquifer.history_match import fit_aquifer_model
+
+    fast, plain = _both(fit_aquifer_model, *field, model)
+    assert fast.giip_bscf == pytest.approx(plain.giip_bscf, rel=1e-6)
+    assert fast.rss_psia2 == pytest.approx(plain.rss_psia2, rel=1e-6)
+    assert (fast.identifiable, fast.converged) == (plain.identifiable, plain.converged)
