@@ -19,11 +19,11 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import multiprocessing as mp
 import shutil
 import tempfile
 import time
 import uuid
-from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
 import sqlalchemy as sa
@@ -68,19 +68,24 @@ def variants(n: int, seed: int = 7):
     return tuple(out)
 
 
-def _work(url: str, name: str) -> tuple[int, float]:
-    """One worker process: run queued jobs until none is left or running, as a
-    `tankbook worker` process would (it polls; ``runner.drain`` alone stops as soon as
-    nothing is queued, which a second worker sees while the first splits a portfolio job).
+def _work(url: str, name: str, ready, go, results) -> None:
+    """One worker process, started before the recompute is queued and ready when its compiled
+    kernels are loaded, as a running `tankbook worker` is (the recompute's clock starts when
+    ``go`` is set); then it runs queued jobs until none is left or running, as `tankbook worker`
+    would (it polls; ``runner.drain`` alone stops as soon as nothing is queued, which a second
+    worker sees while the first splits a portfolio job). Puts (name, jobs run, processor time)
+    on ``results``.
 
     Through the job runner, not by calling the recompute directly: on SQLite a recompute's
     transaction must take the write lock before it reads (``jobs.write_first``, which the
     runner does), or it fails at once with "database is locked" when the other worker
     committed meanwhile (the benchmark failed so, 2 runs of 2, before issue 17)."""
-    from server.engine import accel
+    from server.engine.warm import warm
 
-    accel.enable()  # as `tankbook worker` does
+    warm()  # as `tankbook worker` switches the compiled kernels on; loads them from numba's cache
     db = Database(url)
+    ready.wait()
+    go.wait()
     ran = 0
     cpu0 = time.process_time()
     try:
@@ -89,7 +94,8 @@ def _work(url: str, name: str) -> tuple[int, float]:
             with db.session() as s:
                 busy = s.execute(sa.select(Job.id).where(Job.status.in_(("queued", "running"))).limit(1))
                 if busy.first() is None:
-                    return ran, time.process_time() - cpu0
+                    results.put((name, ran, time.process_time() - cpu0))
+                    return
             time.sleep(0.1)
     finally:
         db.dispose()
@@ -144,18 +150,26 @@ def main() -> int:
                 analyse_field(load_field_inputs(s, s.get(Field, fid)))
         serial_per_field = (time.perf_counter() - t0) / len(sample)
         serial_cpu_per_field = (time.process_time() - cpu0) / len(sample)
+        names = [f"bench-worker-{k + 1}" for k in range(args.workers)]
+        ctx = mp.get_context("fork")
+        ready, go, results = ctx.Barrier(args.workers + 1), ctx.Event(), ctx.Queue()
+        procs = [ctx.Process(target=_work, args=(url, name, ready, go, results)) for name in names]
+        for p in procs:
+            p.start()
+        ready.wait()  # every worker running, its kernels loaded
         with db.session() as s:
             if args.queue == "portfolio":
                 portfolio_id = jobs.enqueue_portfolio_recompute(s, reason="benchmark").id
             else:
                 portfolio_id = None
                 jobs.enqueue_field_recompute(s, ids, reason="benchmark")
-        names = [f"bench-worker-{k + 1}" for k in range(args.workers)]
         t0 = time.perf_counter()
-        with ProcessPoolExecutor(args.workers) as pool:
-            ran = list(pool.map(_work, [url] * args.workers, names))
-        done, cpu = sum(r for r, _ in ran), [c for _, c in ran]
+        go.set()
+        ran = [results.get() for _ in procs]
         wall = time.perf_counter() - t0
+        for p in procs:
+            p.join()
+        done, cpu = sum(r for _, r, _ in ran), [c for _, _, c in ran]
         with db.session() as s:
             stored = s.execute(sa.select(sa.func.count(Estimate.id))).scalar_one()
             ok = s.execute(sa.select(sa.func.count(Estimate.id)).where(Estimate.status == "ok")).scalar_one()

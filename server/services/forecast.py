@@ -48,6 +48,17 @@ def _month_date(t_days: float) -> dt.date:
     return date_from_days(t_days - 1.0)
 
 
+def _years_and_month_days(t_days) -> tuple[list[int], list[int]]:
+    """(calendar year, days in the month) of each month-end time, as :func:`_month_date` dates
+    them (numpy's calendar in one pass: a forecast has hundreds of months a case)."""
+    if len(t_days) == 0:
+        return [], []
+    day = np.datetime64("1970-01-01", "D") + np.rint(np.asarray(t_days, float) - 1.0).astype("timedelta64[D]")
+    month = day.astype("datetime64[M]")
+    days = (month + 1).astype("datetime64[D]") - month.astype("datetime64[D]")
+    return (month.astype("datetime64[Y]").astype(int) + 1970).tolist(), days.astype(int).tolist()
+
+
 def yearly_rows(profile: dict) -> list[dict]:
     """One row per calendar year of a stored profile (JSON form): gas produced [Bscf], the
     year's average calendar rate over its forecast months [Mscf/d], condensate and water [stb]
@@ -58,26 +69,25 @@ def yearly_rows(profile: dict) -> list[dict]:
     cum = profile.get("cumulative_bscf") or []
     cond = profile.get("condensate_stb") or None
     water = profile.get("water_stb") or None
+    years, month_days = _years_and_month_days(t)
     rows: dict[int, dict] = {}
-    for i, ti in enumerate(t):
-        d = _month_date(ti)
-        row = rows.setdefault(
-            d.year,
-            {
-                "year": d.year,
+    for i, year in enumerate(years):
+        row = rows.get(year)
+        if row is None:
+            row = rows[year] = {
+                "year": year,
                 "gas_bscf": 0.0,
                 "condensate_stb": 0.0,
                 "water_stb": 0.0,
                 "days": 0,
                 "cumulative_bscf": None,
-            },
-        )
+            }
         row["gas_bscf"] += gas[i] or 0.0
         if cond is not None:
             row["condensate_stb"] += cond[i] or 0.0
         if water is not None:
             row["water_stb"] += water[i] or 0.0
-        row["days"] += calendar.monthrange(d.year, d.month)[1]
+        row["days"] += month_days[i]
         row["cumulative_bscf"] = cum[i] if i < len(cum) else None
     out = []
     for year in sorted(rows):

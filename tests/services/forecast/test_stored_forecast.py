@@ -5,6 +5,7 @@ Each expected number follows from the Gregorian calendar (Python's ``calendar``/
 
 import datetime as dt
 
+import numpy as np
 import pytest
 
 from server.services.forecast import remaining_after, stop_words, stored_forecast, yearly_rows
@@ -87,3 +88,17 @@ def test_yearly_rows_carry_water_when_the_profile_has_it():
     rows = yearly_rows(p)
     assert rows[0]["water_stb"] == pytest.approx(4.0 * 10000.0 * 365 / 1e3)  # 2027: 365 days
     assert rows[1]["water_stb"] == pytest.approx(4.0 * 10000.0 * 366 / 1e3)  # 2028: leap year
+
+
+def test_years_and_month_days_follow_the_python_calendar():
+    # numpy's calendar (issue 17: one pass instead of a date a month) against the standard
+    # library's, on month ends from 1888 to 2134, half days included (both round half to even).
+    import calendar
+
+    from server.services.forecast import _month_date, _years_and_month_days
+
+    t = np.concatenate([np.arange(-30000.0, 60000.0, 0.5), [59.5, 60.5, 11016.5]])
+    years, days = _years_and_month_days(t)
+    expected = [(d.year, calendar.monthrange(d.year, d.month)[1]) for d in map(_month_date, t)]
+    assert list(zip(years, days, strict=True)) == expected
+    assert _years_and_month_days([]) == ([], [])
