@@ -17,19 +17,25 @@ def warm() -> bool:
     (nothing compiled) when numba is not installed."""
     if not accel.enable():
         return False
-    from .aquifer.compiled import influx_rb, newton_history
+    from .aquifer.compiled import influx_rb, linear_responses, newton_history
     from .compartments.two_tank_sensitivity import _march
 
     n = 4
-    p = np.full(n, 900.0)
+    p, zeros = np.full(n, 900.0), np.zeros(n)
     kernel, m = np.array([1.0, 0.5, 0.25, 0.125]), np.array([-1.0, -0.5, -0.25, -0.125])
     offsets, coefs = np.array([0], dtype=np.int64), np.array([-1.0])
-    influx_rb(kernel, offsets, coefs, 1000.0, p)
     tab_p = np.linspace(14.7, 1500.0, 11)
-    tab_phi = tab_p / 0.9
+    tab_phi, tab_dphi = tab_p / 0.9, np.full(11, 1 / 0.9)
+    gp = np.linspace(1e8, 4e8, n)
+    influx_rb(kernel, offsets, coefs, 1000.0, p)
     newton_history(
-        kernel, m, offsets, coefs, 1000.0, tab_p, tab_phi, np.full(11, 1 / 0.9), 0.0, np.zeros(n),
-        np.linspace(1e8, 4e8, n), 1e9, 1e6, 1000.0 / 0.9, p, 1e-7, 30,
+        kernel, m, offsets, coefs, 1000.0, tab_p, tab_phi, tab_dphi, 0.0, zeros, gp, 1e9, 1e6, 1000.0 / 0.9,
+        p.copy(), 1e-7, 30,
+    )  # fmt: skip
+    two = np.ones(2)
+    linear_responses(
+        np.vstack([kernel, kernel]), np.array([False, True]), 1e9 * two, 1000.0 * two, 1000.0 / 0.9 * two,
+        1e6 * two, p, zeros, m, offsets, coefs, tab_p, tab_phi, tab_dphi, 0.0, zeros, gp,
     )  # fmt: skip
     pot = tab_phi**2
     out = np.zeros((n + 1, 10))

@@ -108,3 +108,53 @@ def newton_history(
         if moved < tol_psia:
             return True
     return False
+
+
+@njit(cache=True, nogil=True)
+def linear_responses(
+    kernels, fresh, gs_scf, pis, pz_is, gpvs_rb, p, we0_rb, m, offsets, coefs, tab_p, tab_phi, tab_dphi,
+    ce_per_psi, wp_rb, gp_scf,
+):  # fmt: skip
+    """The pressure and influx responses of a solved history to perturbed parameters (row j of
+    each input: G [scf], p_i [psia], p_i/z_i, G B_gi [rb] and kernel; ``fresh[j]`` when the
+    influx at fixed pressures changes). Row 0 is the solved point itself (``fresh[0]`` False).
+
+    dp_j = −(∂R/∂p)⁻¹ (R(p, We_j; θ_j) − R(p, We_0; θ_0)) by forward substitution with ∂R/∂p
+    = diag(c) − diag(a) T(m) at the solved point (:meth:`.tank_solver.TankSolver.linear_responses`
+    in numpy), and We_j + T(m) dp_j. Returns (dp, We) of shape (parameters, steps).
+    """
+    k, n = kernels.shape
+    phi = np.empty(n)
+    dphi = np.empty(n)
+    for i in range(n):
+        phi[i], dphi[i] = _interp_pair(p[i], tab_p, tab_phi, tab_dphi)
+    r0 = np.empty(n)
+    a = np.empty(n)
+    c = np.empty(n)
+    g0, pi0, pz_i0, gpv0 = gs_scf[0], pis[0], pz_is[0], gpvs_rb[0]
+    for i in range(n):
+        u = phi[i] / pz_i0
+        d = 1.0 - ce_per_psi * (pi0 - p[i]) - (we0_rb[i] - wp_rb[i]) / gpv0
+        r0[i] = u * d - (1.0 - gp_scf[i] / g0)
+        a[i] = u / gpv0
+        c[i] = dphi[i] / pz_i0 * d + u * ce_per_psi
+    dp = np.empty((k, n))
+    we_out = np.empty((k, n))
+    for j in range(1, k):
+        we = influx_rb(kernels[j], offsets, coefs, pis[j], p) if fresh[j] else we0_rb.copy()
+        g, pi, pz_i, gpv = gs_scf[j], pis[j], pz_is[j], gpvs_rb[j]
+        for i in range(n):  # (diag(c) − diag(a) T(m)) dp = −(R_j − R_0)
+            u = phi[i] / pz_i
+            d = 1.0 - ce_per_psi * (pi - p[i]) - (we[i] - wp_rb[i]) / gpv
+            acc = -(u * d - (1.0 - gp_scf[i] / g) - r0[i])
+            s = 0.0
+            for q in range(i):
+                s += m[i - q] * dp[j, q]
+            acc += a[i] * s
+            dp[j, i] = acc / (c[i] - a[i] * m[0])
+        for i in range(n):
+            s = 0.0
+            for q in range(i + 1):
+                s += m[i - q] * dp[j, q]
+            we_out[j, i] = we[i] + s
+    return dp[1:], we_out[1:]

@@ -11,9 +11,8 @@ from __future__ import annotations
 import numpy as np
 
 from .dimensionless import influx_table
-from .influx import causal_convolution
 from .models import AquiferModelSpec, KernelCache
-from .tank_solver import TankGrid, TankSolver, solve_lower
+from .tank_solver import TankGrid, TankSolver
 
 #: The fit stops once every parameter is within this many standard errors of the
 #: linearised optimum (:meth:`MatchProblem.settled`).
@@ -128,25 +127,22 @@ class MatchProblem:
         theta = np.asarray(theta, float)
         solver = self.solver
         g0, pi0, _ = self.kernel(theta)
-        r0 = solver.residual(st.p_psia, st.we_rb, g0, pi0)
-        jac_p = solver.jacobian_p(st.p_psia, st.we_rb, g0, pi0, st.dwe_dp_column)
         steps = 1e-7 * np.maximum(np.abs(theta), 1.0)
-        jac = np.empty((y.size, theta.size))
-        frac0 = st.we_rb[-1] / solver.gas_pore_volume_rb(g0, pi0)
-        self.influx_frac_gradient = np.empty(theta.size)
-        dp_dtheta = np.empty((st.p_psia.size, theta.size))
+        perturbed = []
         for j in range(theta.size):
             th = theta.copy()
             th[j] += steps[j]
-            g, pi, k = self.kernel(th)
             # Influx at fixed pressures changes only with p_i, the strength and the time constant.
-            we = st.we_rb if j == 0 else solver.influx_at(st.p_psia, pi, k)
-            dp = -solve_lower(jac_p, solver.residual(st.p_psia, we, g, pi) - r0)  # dp/dθ_j x step
-            dp_dtheta[:, j] = dp / steps[j]
-            we_total = we + causal_convolution(st.dwe_dp_column, dp)
-            jac[:, j] = (solver.observe(we_total, g, pi, st.p_psia + dp) - y) / steps[j]
-            frac = we_total[-1] / solver.gas_pore_volume_rb(g, pi)
+            perturbed.append((*self.kernel(th), j != 0))
+        dps, wes = solver.linear_responses(st, g0, pi0, perturbed)
+        jac = np.empty((y.size, theta.size))
+        frac0 = st.we_rb[-1] / solver.gas_pore_volume_rb(g0, pi0)
+        self.influx_frac_gradient = np.empty(theta.size)
+        for j, (g, pi, _, _) in enumerate(perturbed):
+            jac[:, j] = (solver.observe(wes[j], g, pi, st.p_psia + dps[j]) - y) / steps[j]
+            frac = wes[j][-1] / solver.gas_pore_volume_rb(g, pi)
             self.influx_frac_gradient[j] = (frac - frac0) / steps[j]
+        dp_dtheta = (dps / steps[:, None]).T
         self._last_jac = (key, self.sqrt_w[:, None] * jac, self.influx_frac_gradient.copy())
         self._tangent = (theta.copy(), st.p_psia, dp_dtheta)
         return self._last_jac[1]

@@ -354,11 +354,8 @@ class TankSolver:
         """:meth:`solve` compiled (:mod:`.compiled`): the same method and stopping rule."""
         from .compiled import newton_history  # numba: imported only on this path
 
-        if self._compiled_arrays is None:  # writable copies: one compiled signature for all
-            g, tab = self.grid, self.table
-            self._compiled_arrays = tuple(
-                np.array(a, dtype=float) for a in (tab.p, tab.phi, tab.dphi, g.wp_rb, g.gp_scf)
-            )
+        if self._compiled_arrays is None:
+            self._compiled_arrays = self._arrays_for_compiled()
         tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._compiled_arrays
         p = np.array(p_start, dtype=float)  # a copy: the compiled solve works in place
         converged = newton_history(
@@ -368,6 +365,45 @@ class TankSolver:
             _NEWTON_MAX_ITER,
         )  # fmt: skip
         return TankState(p, self.influx_at(p, pi, kernel_column), m, bool(converged))
+
+    def linear_responses(self, state: TankState, g_scf, pi, perturbed):
+        """(dp, We) of a solved history for each perturbed (G, p_i, kernel, fresh): to first
+        order, dp = −(∂R/∂p)⁻¹ (R(p, We'; G', p_i') − R(p, We; G, p_i)) and We' + T(m) dp, with
+        We' the influx at the same pressures (recomputed when ``fresh``, else the solved one).
+        Arrays of shape (len(perturbed), steps); compiled when :mod:`..accel` is enabled."""
+        p, we0, m = state.p_psia, state.we_rb, state.dwe_dp_column
+        if accel.enabled():
+            from .compiled import linear_responses  # numba: imported only on this path
+
+            if self._compiled_arrays is None:
+                self._compiled_arrays = self._arrays_for_compiled()
+            tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._compiled_arrays
+            rows = [(g_scf, pi, None, False), *perturbed]
+            kernels = np.zeros((len(rows), p.size))
+            for j, (_, _, kernel, _) in enumerate(rows[1:], start=1):
+                kernels[j] = kernel
+            gs = np.array([float(r[0]) for r in rows])
+            pis = np.array([float(r[1]) for r in rows])
+            pz_is = np.array([float(self.pz_initial(v)) for v in pis])
+            gpvs = np.array([float(self.gas_pore_volume_rb(g, v)) for g, v in zip(gs, pis, strict=True)])
+            return linear_responses(
+                kernels, np.array([r[3] for r in rows]), gs, pis, pz_is, gpvs, np.array(p, dtype=float),
+                np.array(we0, dtype=float), m, self._band_offsets, self._band_coefs, tab_p, tab_phi, tab_dphi,
+                float(self.grid.ce_per_psi), wp_rb, gp_scf,
+            )  # fmt: skip
+        r0 = self.residual(p, we0, g_scf, pi)
+        jac_p = self.jacobian_p(p, we0, g_scf, pi, m)
+        dps, wes = np.empty((len(perturbed), p.size)), np.empty((len(perturbed), p.size))
+        for j, (g, pi_j, kernel, fresh) in enumerate(perturbed):
+            we = self.influx_at(p, pi_j, kernel) if fresh else we0
+            dps[j] = -solve_lower(jac_p, self.residual(p, we, g, pi_j) - r0)
+            wes[j] = we + causal_convolution(m, dps[j])
+        return dps, wes
+
+    def _arrays_for_compiled(self):
+        """The table and production as writable copies: one compiled signature for all calls."""
+        g, tab = self.grid, self.table
+        return tuple(np.array(a, dtype=float) for a in (tab.p, tab.phi, tab.dphi, g.wp_rb, g.gp_scf))
 
     def observe(self, we, g_scf, pi, p_grid):
         """Model p/z at the survey times [psia]."""

@@ -86,3 +86,26 @@ def test_the_history_match_is_the_same_compiled_or_not(field, model):
     assert fast.giip_bscf == pytest.approx(plain.giip_bscf, rel=1e-6)
     assert fast.rss_psia2 == pytest.approx(plain.rss_psia2, rel=1e-6)
     assert (fast.identifiable, fast.converged) == (plain.identifiable, plain.converged)
+
+
+@pytest.mark.parametrize("model", sorted(SPECS))
+def test_compiled_jacobian_is_the_numpy_jacobian(field, model):
+    # The history match's Jacobian (linear responses of the solved history to each parameter,
+    # tank_solver.TankSolver.linear_responses) compiled and in numpy, at the fit's start.
+    from server.engine.aquifer import history_match as hm
+
+    inputs, prepared = field
+    grid = tank_grid(inputs, prepared)
+    spec = SPECS[model]
+    reds = hm.VEH_RED_GRID if model == "aquifer_veh_radial" else (None,)
+    x0, bounds, fit_pi, s_ref, red = hm._start_and_bounds(inputs, grid, spec, reds)
+
+    def jacobian():
+        problem = hm._Problem(grid, spec, red, fit_pi, s_ref, along_valley=True)
+        theta, _ = problem.from_plain(x0, bounds)
+        return problem.jacobian(theta), problem.influx_frac_gradient, problem._tangent[2]
+
+    fast, plain = _both(jacobian)
+    for a, b in zip(fast, plain, strict=True):
+        # forward differences of step 1e-7: rounding of the two solves shows at about 1e-8 of a column
+        assert np.max(np.abs(a - b)) <= 1e-6 * np.abs(b).max(), np.max(np.abs(a - b)) / np.abs(b).max()
