@@ -17,7 +17,7 @@ def warm() -> bool:
     (nothing compiled) when numba is not installed."""
     if not accel.enable():
         return False
-    from .aquifer.compiled import influx_rb, linear_responses, newton_history
+    from .aquifer.compiled import influx_rb, linear_responses, newton_history, table_column
     from .compartments.two_tank_sensitivity import _march
 
     n = 4
@@ -32,6 +32,7 @@ def warm() -> bool:
         kernel, m, offsets, coefs, 1000.0, tab_p, tab_phi, tab_dphi, 0.0, zeros, gp, 1e9, 1e6, 1000.0 / 0.9,
         p.copy(), 1e-7, 30,
     )  # fmt: skip
+    table_column(tab_p, np.log(tab_phi), np.full(11, 0.5), True, 1.0, n)
     two = np.ones(2)
     linear_responses(
         np.vstack([kernel, kernel]), np.array([False, True]), 1e9 * two, 1000.0 * two, 1000.0 / 0.9 * two,

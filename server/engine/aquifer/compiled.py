@@ -22,6 +22,16 @@ from numba import njit
 
 
 @njit(cache=True, nogil=True)
+def _support(column):
+    """1 + the index of the column's last non-zero entry (0 for a zero column): a pot aquifer's
+    kernel is one entry, a fast Fetkovich one underflows to zero; the sums skip the zeros."""
+    k = column.size
+    while k > 0 and column[k - 1] == 0.0:
+        k -= 1
+    return k
+
+
+@njit(cache=True, nogil=True)
 def influx_rb(kernel, offsets, coefs, pi, p):
     """We = T(kernel) Δ(p_i, p) [rb] (causal convolution of the kernel with the drops)."""
     n = p.size
@@ -31,9 +41,10 @@ def influx_rb(kernel, offsets, coefs, pi, p):
         for j in range(off, n):
             drops[j] += coef * (p[j - off] - pi)
     we = np.empty(n)
+    width = _support(kernel)
     for i in range(n):
         acc = 0.0
-        for j in range(i + 1):
+        for j in range(max(0, i - width + 1), i + 1):
             acc += kernel[i - j] * drops[j]
         we[i] = acc
     return we
@@ -78,8 +89,12 @@ def newton_history(
     rhs = np.empty(n)
     diag = np.empty(n)
     step = np.empty(n)
+    width = _support(m)
+    # We is linear in p: after a step δ it is We + T(m) δ, which the substitution sums anyway
+    # (recomputed from the drops only after a step clipped at the table's ends).
+    we = influx_rb(kernel, offsets, coefs, pi, p)
+    t_m_step = np.empty(n)
     for _ in range(max_iter):
-        we = influx_rb(kernel, offsets, coefs, pi, p)
         for i in range(n):
             phi, dphi = _interp_pair(p[i], tab_p, tab_phi, tab_dphi)
             u = phi / pz_i
@@ -89,24 +104,30 @@ def newton_history(
             c = dphi / pz_i * d + u * ce_per_psi
             rhs[i] = -r / a
             diag[i] = c / a - m[0]
-        finite = True
         for i in range(n):  # (diag(c/a) − T(m)) step = −R/a, forward substitution
-            acc = rhs[i]
-            for j in range(i):
+            acc = 0.0
+            for j in range(max(0, i - width + 1), i):
                 acc += m[i - j] * step[j]
-            step[i] = acc / diag[i]
+            step[i] = (rhs[i] + acc) / diag[i]
             if not np.isfinite(step[i]):
-                finite = False
-                break
-        if not finite:
-            return False
+                return False
+            t_m_step[i] = acc + m[0] * step[i]
         moved = 0.0
+        clipped = False
         for i in range(n):
-            new = min(max(p[i] + step[i], p_lo), p_hi)
+            new = p[i] + step[i]
+            if new < p_lo or new > p_hi:
+                new = min(max(new, p_lo), p_hi)
+                clipped = True
             moved = max(moved, abs(new - p[i]))
             p[i] = new
         if moved < tol_psia:
             return True
+        if clipped:
+            we = influx_rb(kernel, offsets, coefs, pi, p)
+        else:
+            for i in range(n):
+                we[i] += t_m_step[i]
     return False
 
 
@@ -140,6 +161,7 @@ def linear_responses(
         c[i] = dphi[i] / pz_i0 * d + u * ce_per_psi
     dp = np.empty((k, n))
     we_out = np.empty((k, n))
+    width = _support(m)
     for j in range(1, k):
         we = influx_rb(kernels[j], offsets, coefs, pis[j], p) if fresh[j] else we0_rb.copy()
         g, pi, pz_i, gpv = gs_scf[j], pis[j], pz_is[j], gpvs_rb[j]
@@ -148,13 +170,43 @@ def linear_responses(
             d = 1.0 - ce_per_psi * (pi - p[i]) - (we[i] - wp_rb[i]) / gpv
             acc = -(u * d - (1.0 - gp_scf[i] / g) - r0[i])
             s = 0.0
-            for q in range(i):
+            for q in range(max(0, i - width + 1), i):
                 s += m[i - q] * dp[j, q]
             acc += a[i] * s
             dp[j, i] = acc / (c[i] - a[i] * m[0])
         for i in range(n):
             s = 0.0
-            for q in range(i + 1):
+            for q in range(max(0, i - width + 1), i + 1):
                 s += m[i - q] * dp[j, q]
             we_out[j, i] = we[i] + s
     return dp[1:], we_out[1:]
+
+
+@njit(cache=True, nogil=True)
+def table_column(log_td_nodes, log_f, slope, bounded, td_step, n):
+    """f(t_D k) for k = 1..n from a :class:`.dimensionless.DimensionlessTable`'s nodes (the same
+    cubic Hermite in ln t_D and the same continuations: slope ½ below the table, the plateau
+    above a bounded one). NaN marks a t_D beyond an unbounded table (the caller raises)."""
+    out = np.empty(n)
+    count = log_td_nodes.size
+    x0, x1 = log_td_nodes[0], log_td_nodes[count - 1]
+    h = (x1 - x0) / (count - 1)
+    for k in range(n):
+        x = np.log(td_step * (k + 1))
+        if x < x0:
+            y = log_f[0] + 0.5 * (x - x0)
+        elif x > x1:
+            if not bounded:
+                out[k] = np.nan
+                continue
+            y = log_f[count - 1]
+        else:
+            i = min(int((x - x0) / h), count - 2)
+            u = (x - log_td_nodes[i]) / h
+            y0, y1 = log_f[i], log_f[i + 1]
+            m0, m1 = slope[i] * h, slope[i + 1] * h
+            u2 = u * u
+            u3 = u2 * u
+            y = (2 * u3 - 3 * u2 + 1) * y0 + (u3 - 2 * u2 + u) * m0 + (3 * u2 - 2 * u3) * y1 + (u3 - u2) * m1
+        out[k] = np.exp(y)
+    return out

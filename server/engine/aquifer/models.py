@@ -12,6 +12,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .. import accel
+from .dimensionless import influx_table
 from .influx import (
     fetkovich_kernel_column,
     step_average_pressure_drops,
@@ -90,6 +92,22 @@ class KernelCache:
         if c is None:
             if len(self._cache) > 8:
                 self._cache.clear()
-            c = self.spec.unit_columns(self.dt, self.n, [rate if rate is not None else 0.0], self.red)[0]
+            c = None
+            if accel.enabled() and self.spec.name == "aquifer_veh_radial":
+                c = self._compiled_veh(rate)
+            if c is None:
+                c = self.spec.unit_columns(self.dt, self.n, [rate if rate is not None else 0.0], self.red)[0]
             self._cache[key] = c
         return c
+
+    def _compiled_veh(self, rate: float):
+        """The van Everdingen-Hurst column W_D(t_D k Δt) compiled (:func:`.compiled.table_column`);
+        None (the numpy path, which raises) past an unbounded table or for a non-positive t_D."""
+        from .compiled import table_column
+
+        step = float(rate) * self.dt
+        if not step > 0.0:
+            return None
+        tab = influx_table("radial", self.red)
+        c = table_column(tab.log_td, tab.log_f, tab.slope, tab.plateau is not None, step, self.n)
+        return None if np.isnan(c).any() else c

@@ -109,3 +109,19 @@ def test_compiled_jacobian_is_the_numpy_jacobian(field, model):
     for a, b in zip(fast, plain, strict=True):
         # forward differences of step 1e-7: rounding of the two solves shows at about 1e-8 of a column
         assert np.max(np.abs(a - b)) <= 1e-6 * np.abs(b).max(), np.max(np.abs(a - b)) / np.abs(b).max()
+
+
+@pytest.mark.parametrize("red", [None, 10.0, 5.0, 3.0, 2.0])
+def test_compiled_veh_kernel_column_is_the_table_s_own(red):
+    # W_D(t_D k Δt) from the shipped tables (dimensionless.DimensionlessTable: cubic Hermite in
+    # ln t_D, slope ½ below, the plateau above a bounded table), compiled and in numpy, from
+    # t_D steps far below the table to columns that reach a bounded aquifer's plateau.
+    spec = SPECS["aquifer_veh_radial"]
+    for rate in (1e-9, 1e-5, 1e-3, 0.1, 3.0):
+        fast, plain = _both(lambda r=rate: KernelCache(spec, 30.4, 240, red).unit(r))
+        assert np.allclose(fast, plain, rtol=1e-13, atol=0.0)
+    if red is None:  # past the infinite aquifer's table: the numpy path raises, as before
+        from server.engine.errors import InputRangeError
+
+        with pytest.raises(InputRangeError):
+            _both(lambda: KernelCache(spec, 30.4, 240, None).unit(1e9))
