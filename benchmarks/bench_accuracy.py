@@ -191,7 +191,17 @@ def main(argv=None) -> int:
     ap.add_argument("--first-seed", type=int, default=1, help="first seed (default 1)")
     ap.add_argument("--cases", default="", help="comma-separated case names (default: all)")
     ap.add_argument("--json", default="", help="also write the rows to this JSON file")
+    ap.add_argument(
+        "--compiled",
+        action="store_true",
+        help="with the engine's compiled kernels, as worker processes run it (default: numpy, as "
+        "`tankbook analyse`)",
+    )
     args = ap.parse_args(argv)
+    if args.compiled:
+        from server.engine import accel
+
+        accel.enable()
     names = [n.strip() for n in args.cases.split(",") if n.strip()]
     unknown = [n for n in names if n not in CASE_BY_NAME]
     if unknown:
