@@ -208,12 +208,23 @@ def cmd_set_password(args) -> int:
     return _account_command(args, role=None)
 
 
-def _compiled_engine() -> None:
-    """Switch on the engine's compiled kernels in a process that recomputes many fields (about
-    0.5 s to load, won back after a few fields; server/engine/accel.py)."""
-    from .engine import accel
+def _compiled_engine() -> bool:
+    """Switch on the engine's compiled kernels in a process that recomputes many fields and
+    load them now (about 1 s, won back after a few fields; server/engine/accel.py). Anything
+    that stops them (numba missing, no place for its cache) leaves the numpy path on, with a
+    warning: the results are the same, only slower."""
+    import logging
 
-    accel.enable()
+    from .engine import accel
+    from .engine.warm import warm
+
+    try:
+        if warm():
+            return True
+    except Exception:  # noqa: BLE001 - any failure to compile falls back to the reference path
+        logging.getLogger(__name__).warning("compiled kernels unavailable; using numpy", exc_info=True)
+    accel.disable()
+    return False
 
 
 def cmd_recompute(args) -> int:

@@ -15,6 +15,12 @@ from server.engine.prepare.points import prepare
 from tests.engine.cases import demo_field_inputs
 
 
+@pytest.fixture(autouse=True)
+def numpy_path_after_each_test():
+    yield
+    accel.disable()  # a failed test must not leave the compiled path on for the next
+
+
 @pytest.fixture(scope="module", params=["Cindervale", "Fallowmere", "Gorsewick"])
 def field(request):
     inputs = demo_field_inputs(request.param)
@@ -125,3 +131,21 @@ def test_compiled_veh_kernel_column_is_the_table_s_own(red):
 
         with pytest.raises(InputRangeError):
             _both(lambda: KernelCache(spec, 30.4, 240, None).unit(1e9))
+
+
+def test_a_process_that_cannot_compile_keeps_the_numpy_path(monkeypatch):
+    # tankbook worker / serve / recompute switch the kernels on through cli._compiled_engine; a
+    # failure to compile or cache them (numba missing, no writable cache) must leave the numpy
+    # path on, not stop the process.
+    from server import cli
+    from server.engine import warm as warm_module
+
+    def broken():
+        accel.enable()
+        raise RuntimeError("cannot cache function: no locator available")
+
+    monkeypatch.setattr(warm_module, "warm", broken)
+    assert cli._compiled_engine() is False
+    assert not accel.enabled()
+    monkeypatch.undo()
+    assert cli._compiled_engine() is True and accel.enabled()
