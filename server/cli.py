@@ -272,7 +272,8 @@ def cmd_serve(args) -> int:
         forwarded_allow_ips=settings.forwarded_allow_ips,
     )
     server = uvicorn.Server(config)
-    _compiled_engine()  # the app's worker thread recomputes fields
+    if settings.job_runner == "thread":  # the app's own job thread recomputes fields
+        _compiled_engine()
     if args.first_admin:
         threading.Thread(
             target=_announce_first_admin, args=(server, settings, url), name="first-admin", daemon=True

@@ -5,7 +5,8 @@ compiled tank solve (:mod:`.aquifer.compiled`) and two-tank march
 (:mod:`.compartments.two_tank_sensitivity`); importing numba and loading the compiled code
 costs about a second, which a one-field process (``tankbook analyse``, target 1.5 s) would
 not win back. So the numpy and Python paths are the default and the reference, and
-``tankbook worker`` and ``tankbook serve`` call :func:`enable` (issue 17). Both paths give
+``tankbook worker``, ``tankbook recompute`` and ``tankbook serve`` with its own job thread call
+:func:`enable` (issue 17). Both paths give
 the same results to the solvers' tolerances (tests/engine/aquifer/test_compiled.py,
 tests/engine/compartments/test_two_tank_march.py).
 """
