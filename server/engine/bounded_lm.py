@@ -33,6 +33,7 @@ _MESSAGES = {
     1: "`gtol` termination condition is satisfied.",
     2: "`ftol` termination condition is satisfied.",
     3: "`xtol` termination condition is satisfied.",
+    -1: "The Jacobian is not finite.",
     -2: "`callback` raised `StopIteration`.",
     -3: "The residuals are not finite at the starting point.",
 }
@@ -83,6 +84,9 @@ def bounded_least_squares(
     mu, nu = None, 2.0
     status = None
     while status is None:
+        if not np.all(np.isfinite(j)):
+            status = -1
+            break
         norms = np.sqrt(np.einsum("ij,ij->j", j, j))
         scale = np.maximum(scale, np.where(norms > 0, norms, 1.0))
         g = j.T @ r
@@ -102,6 +106,9 @@ def bounded_least_squares(
                 delta[free] = np.linalg.solve(a + mu * np.diag(d2), -g[free])
             except np.linalg.LinAlgError:
                 mu, nu = mu * nu, 2.0 * nu
+                if not mu < 1e100:  # no damping makes the system solvable (a non-finite Jacobian)
+                    status = 0
+                    break
                 continue
             x_new = np.clip(x + delta, lo, hi)
             step = x_new - x

@@ -119,3 +119,14 @@ def test_active_constraints_follow_scipy_s_rule():
         assert np.array_equal(
             active_constraints(x, lo, hi, 1e-6), find_active_constraints(x, lo, hi, rtol=1e-6)
         )
+
+
+def test_a_jacobian_that_is_not_finite_ends_the_iterations():
+    # No damping can mend it: the solver stops and says why, it does not loop.
+    fit = bounded_least_squares(
+        lambda x: np.array([x[0] - 1.0, x[1]]),
+        lambda x: np.array([[np.inf, 0.0], [0.0, np.inf]]),
+        [0.0, 0.5],
+        ([-5.0, -5.0], [5.0, 5.0]),
+    )
+    assert fit.status == -1 and not fit.success and "not finite" in fit.message
