@@ -1,15 +1,13 @@
 """Compiled kernels (numba), switched on by long-running processes.
 
-A worker that recomputes hundreds of fields gains about an eighth of its engine time from the
-compiled tank solve (:mod:`.aquifer.compiled`) and two-tank march
+A worker that recomputes hundreds of fields spends about 30 % less engine time with the
+compiled history-match loops (:mod:`.aquifer.compiled`) and two-tank march
 (:mod:`.compartments.two_tank_sensitivity`); importing numba and loading the compiled code
-costs about a second, which a one-field process (``tankbook analyse``, target 1.5 s) would
-not win back. So the numpy and Python paths are the default and the reference, and
-``tankbook worker``, ``tankbook recompute`` and ``tankbook serve`` with its own job thread call
-:func:`enable` (issue 17). Both paths give
-the same results to the solvers' tolerances (tests/engine/aquifer/test_compiled.py,
-tests/engine/compartments/test_two_tank_march.py).
-"""
+costs about a second, which a one-field process (``tankbook analyse``, target 1.5 s) would not
+win back. So the numpy and Python paths are the default and the reference, and ``tankbook
+worker``, ``tankbook recompute`` and ``tankbook serve`` with its own job thread call
+:func:`enable` (issue 17). Both paths give the same results to the solvers' tolerances
+(tests/engine/aquifer/test_compiled.py, tests/engine/compartments/test_two_tank_march.py)."""
 
 from __future__ import annotations
 

@@ -17,7 +17,7 @@ def warm() -> bool:
     (nothing compiled) when numba is not installed."""
     if not accel.enable():
         return False
-    from .aquifer.compiled import influx_rb, linear_responses, newton_history, table_column
+    from .aquifer.compiled import linear_responses, newton_history, table_column
     from .compartments.two_tank_sensitivity import _march
 
     n = 4
@@ -27,7 +27,6 @@ def warm() -> bool:
     tab_p = np.linspace(14.7, 1500.0, 11)
     tab_phi, tab_dphi = tab_p / 0.9, np.full(11, 1 / 0.9)
     gp = np.linspace(1e8, 4e8, n)
-    influx_rb(kernel, offsets, coefs, 1000.0, p)
     newton_history(
         kernel, m, offsets, coefs, 1000.0, tab_p, tab_phi, tab_dphi, 0.0, zeros, gp, 1e9, 1e6, 1000.0 / 0.9,
         p.copy(), 1e-7, 30,
@@ -41,18 +40,9 @@ def warm() -> bool:
     pot = tab_phi**2
     out = np.zeros((n + 1, 10))
     accel.compiled(_march)(
-        1e9,
-        2e9,
-        1e-3,
-        1000.0,
-        pot,
-        np.diff(pot) / 148.5,
-        148.5,
-        16.3,
-        np.full(n, 91.3),
-        np.zeros((n, 2)),
+        1e9, 2e9, 1e-3, 1000.0, pot, np.diff(pot) / 148.5, 148.5, 16.3, np.full(n, 91.3), np.zeros((n, 2)),
         out,
-    )
+    )  # fmt: skip
     return True
 
 

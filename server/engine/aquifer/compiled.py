@@ -1,7 +1,8 @@
-"""The tank balance's Newton solve, compiled (numba): the history match's inner loop, used when
-:mod:`..accel` is enabled (worker processes).
+"""The history match's inner loops, compiled (numba), used when :mod:`..accel` is enabled
+(worker processes): the tank balance's Newton solve, the Jacobian's linear responses and the
+van Everdingen-Hurst kernel column from its table.
 
-The same method as :meth:`.tank_solver.TankSolver.solve` in numpy (the default and the
+The solve is the same method as :meth:`.tank_solver.TankSolver.solve` in numpy (the default and the
 reference the tests compare with): Newton's method on the whole pressure history, each step
 one forward substitution with the lower-triangular matrix diag(c/a) − T(m). On the 24-480
 steps of a field's grid numpy's cost is its per-call overhead (about 25 calls a step);
@@ -12,7 +13,8 @@ of :mod:`.influx` are all of this form).
 
 Compiled on first use and cached on disk beside this file (numba's ``cache=True``); ``make
 setup`` and the Docker image compile it once (``python -m server.engine.warm``). Imported only
-when the compiled path runs: importing numba costs about half a second.
+when the compiled path runs: importing numba costs about half a second. Each function has a
+numpy counterpart that the tests compare it with (tests/engine/aquifer/test_compiled.py).
 """
 
 from __future__ import annotations
@@ -163,22 +165,16 @@ def linear_responses(
     we_out = np.empty((k, n))
     width = _support(m)
     for j in range(1, k):
-        we = influx_rb(kernels[j], offsets, coefs, pis[j], p) if fresh[j] else we0_rb.copy()
+        we = influx_rb(kernels[j], offsets, coefs, pis[j], p) if fresh[j] else we0_rb
         g, pi, pz_i, gpv = gs_scf[j], pis[j], pz_is[j], gpvs_rb[j]
-        for i in range(n):  # (diag(c) − diag(a) T(m)) dp = −(R_j − R_0)
+        for i in range(n):  # (diag(c) − diag(a) T(m)) dp = −(R_j − R_0), and We_j + T(m) dp
             u = phi[i] / pz_i
             d = 1.0 - ce_per_psi * (pi - p[i]) - (we[i] - wp_rb[i]) / gpv
-            acc = -(u * d - (1.0 - gp_scf[i] / g) - r0[i])
             s = 0.0
             for q in range(max(0, i - width + 1), i):
                 s += m[i - q] * dp[j, q]
-            acc += a[i] * s
-            dp[j, i] = acc / (c[i] - a[i] * m[0])
-        for i in range(n):
-            s = 0.0
-            for q in range(max(0, i - width + 1), i + 1):
-                s += m[i - q] * dp[j, q]
-            we_out[j, i] = we[i] + s
+            dp[j, i] = (-(u * d - (1.0 - gp_scf[i] / g) - r0[i]) + a[i] * s) / (c[i] - a[i] * m[0])
+            we_out[j, i] = we[i] + (s + m[0] * dp[j, i])
     return dp[1:], we_out[1:]
 
 

@@ -354,9 +354,7 @@ class TankSolver:
         """:meth:`solve` compiled (:mod:`.compiled`): the same method and stopping rule."""
         from .compiled import newton_history  # numba: imported only on this path
 
-        if self._compiled_arrays is None:
-            self._compiled_arrays = self._arrays_for_compiled()
-        tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._compiled_arrays
+        tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._arrays_for_compiled()
         p = np.array(p_start, dtype=float)  # a copy: the compiled solve works in place
         converged = newton_history(
             np.array(kernel_column, dtype=float), m, self._band_offsets, self._band_coefs, float(pi), tab_p,
@@ -375,9 +373,7 @@ class TankSolver:
         if accel.enabled():
             from .compiled import linear_responses  # numba: imported only on this path
 
-            if self._compiled_arrays is None:
-                self._compiled_arrays = self._arrays_for_compiled()
-            tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._compiled_arrays
+            tab_p, tab_phi, tab_dphi, wp_rb, gp_scf = self._arrays_for_compiled()
             rows = [(g_scf, pi, None, False), *perturbed]
             kernels = np.zeros((len(rows), p.size))
             for j, (_, _, kernel, _) in enumerate(rows[1:], start=1):
@@ -401,9 +397,14 @@ class TankSolver:
         return dps, wes
 
     def _arrays_for_compiled(self):
-        """The table and production as writable copies: one compiled signature for all calls."""
-        g, tab = self.grid, self.table
-        return tuple(np.array(a, dtype=float) for a in (tab.p, tab.phi, tab.dphi, g.wp_rb, g.gp_scf))
+        """The table and production as writable copies (one compiled signature for all calls),
+        made on the first compiled call."""
+        if self._compiled_arrays is None:
+            g, tab = self.grid, self.table
+            self._compiled_arrays = tuple(
+                np.array(a, dtype=float) for a in (tab.p, tab.phi, tab.dphi, g.wp_rb, g.gp_scf)
+            )
+        return self._compiled_arrays
 
     def observe(self, we, g_scf, pi, p_grid):
         """Model p/z at the survey times [psia]."""

@@ -220,7 +220,9 @@ def _march_two(theta, prob: _Problem) -> tuple[np.ndarray, np.ndarray]:
     lgam = float(theta[3])
     g = np.exp(np.clip(lg, *LOG_GIIP_BOUNDS)) * 1e9
     gam = float(np.exp(np.clip(lgam, *LOG_GAMMA_BOUNDS)))  # as _predict computes it
-    march = simulate_two_with_sensitivities(g[0], g[1], gam, pzi, prob.potential, *prob.step_arrays())
+    # Arrays for the compiled march, the problem's own lists for the interpreted one.
+    steps = prob.step_arrays() if accel.enabled() else (prob.step_days, prob.withdrawal_scf)
+    march = simulate_two_with_sensitivities(g[0], g[1], gam, pzi, prob.potential, *steps)
     u = march[:, :2]  # (steps + 1, 2)
     du = march[:, 2:].reshape(-1, 2, 4)  # (steps + 1, tank, by pzi, G0, G1, Gamma)
     inside = np.array(
