@@ -62,6 +62,25 @@ class ModelFit:
     notes: tuple[str, ...] = ()
 
 
+#: Notes of a fit that say a parameter is not determined (the fitters' own words).
+_UNDETERMINED = ("bound", "fitted at zero", "not determined", "did not converge", "does not fall")
+
+
+def determined(fit) -> tuple[bool, str]:
+    """Whether the data determine a fit's GIIP (bounded, converged, no parameter at a search
+    bound): for a :class:`ModelFit` or its assessment in a model comparison (same fields)."""
+    if fit.giip_bscf is None:
+        return False, "not determined: the data do not bound its GIIP"
+    if not fit.converged:
+        return False, "not determined: the fit did not converge"
+    if fit.giip_low_bscf is None or fit.giip_high_bscf is None:
+        return False, "not determined: its GIIP interval is unbounded"
+    bad = [n for n in fit.notes if any(word in n for word in _UNDETERMINED)]
+    if bad:
+        return False, "not determined: " + bad[0]
+    return True, "determined"
+
+
 #: Longest look ahead when a model is stepped to the abandonment pressure [years] (common practice).
 HORIZON_YEARS = 50.0
 

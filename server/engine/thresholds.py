@@ -32,6 +32,8 @@ class FlagThresholds:
     curvature_p_value: float = 0.01  # significance of the p/z bend
     cole_p_value: float = 0.01  # a Cole plot "rising" by the Cole rule must also be this significant
     cole_min_change_frac: float = 0.02  # ... and rise by at least this share across the production
+    bend_model_delta_aicc: float = 4.0  # an aquifer model following a p/z bend beats the line by this
+    bend_min_giip_drop_frac: float = 0.05  # ... with a GIIP at least this share below the line's
     water_rise_factor: float = 2.0  # late / early water-gas ratio
     water_rise_min_stb_per_mmscf: float = 5.0  # and the late ratio at least this
     well_disagreement_sigma: float = 4.0  # median offset of a well in noise widths
@@ -99,6 +101,12 @@ THRESHOLD_LIMITS: dict[str, ThresholdLimits] = {
     "cole_p_value": ThresholdLimits(1e-6, 0.2, "p-value", "significance of a rising Cole plot"),
     "cole_min_change_frac": ThresholdLimits(
         0.0, 1.0, "fraction", "rise of F/Eg across the production a rising Cole plot needs"
+    ),
+    "bend_model_delta_aicc": ThresholdLimits(
+        0.0, 100.0, "AICc", "margin over the single tank of an aquifer model following a p/z bend"
+    ),
+    "bend_min_giip_drop_frac": ThresholdLimits(
+        0.0, 0.9, "fraction", "GIIP drop below the straight line that makes a followed bend material"
     ),
     "water_rise_factor": ThresholdLimits(1.1, 20.0, "ratio", "late / early water-gas ratio that is rising"),
     "water_rise_min_stb_per_mmscf": ThresholdLimits(

@@ -7,6 +7,7 @@ import datetime as dt
 from ..compartments.well_trend import WellFinding
 from ..thresholds import FlagThresholds
 from .flags import SEVERITIES, Evidence, Flag
+from .support_signs import bend_followed, cole_rising, compressible_support
 
 DEFAULT_THRESHOLDS = FlagThresholds()
 
@@ -194,67 +195,6 @@ def _wells_disagree(ev: Evidence) -> list[WellFinding]:
     return [f for f in ev.wells if f.disagrees]
 
 
-def cole_rising(ev: Evidence, th: FlagThresholds) -> bool:
-    """The Cole plot (F/Eg against Gp) rises by the Cole rule, at p below ``cole_p_value`` and by
-    at least ``cole_min_change_frac``: a model-free sign of pressure support (Cole 1969; domain
-    reference §7.2); or it rises less certainly while a determined aquifer model leads the
-    ranking (:func:`_cole_and_model_agree`)."""
-    c = ev.cole
-    return bool(
-        c is not None
-        and c.direction == "rising"
-        and c.p_value < th.cole_p_value
-        and c.change_frac >= th.cole_min_change_frac
-    ) or _cole_and_model_agree(ev, th)
-
-
-def _cole_and_model_agree(ev: Evidence, th: FlagThresholds) -> bool:
-    """Two modest signs that agree: the Cole plot rises by the Cole rule itself (p < 0.05) by at
-    least ``cole_min_change_frac``, and a determined aquifer model leads the model ranking ahead
-    of the single tank by at least ``comparable_delta_aicc`` (engine 0.6.5; measured on
-    bench_accuracy seeds 1-40: no depletion-drive, overpressured, condensate or off-datum field
-    shows both)."""
-    c, cmp = ev.cole, ev.comparison
-    if c is None or c.direction != "rising" or c.change_frac < th.cole_min_change_frac or cmp is None:
-        return False
-    if not cmp.rows or not cmp.rows[0].name.startswith("aquifer_"):
-        return False
-    single = cmp.row("single_tank")
-    if single is None:
-        return False
-    for r in cmp.rows:
-        if not r.name.startswith("aquifer_"):
-            return False
-        if r.identifiable:
-            return single.aicc - r.aicc >= th.comparable_delta_aicc
-    return False
-
-
-def compressible_support(ev: Evidence, th: FlagThresholds) -> tuple[float, float] | None:
-    """(gain [AICc], c_e [1/psi]) when a normally pressured field shows support that grows with
-    the pressure drop, else None: the initial gradient is below ``overpressure_gradient_psi_per_ft``,
-    p/z bends down (curvature p below ``curvature_p_value``), and the constant-compressibility
-    tank, determined by the data, beats the single tank by ``model_preference_delta_aicc`` with a
-    c_e above ``normal_rock_max_ce_per_psi``. Rock and water expansion of normally pressured rock
-    is too small for that; a small (pot) aquifer gives the same balance (domain reference §2.4,
-    §4.3; engine 0.6.6). On bench_accuracy seeds 1-40 the three signs together appear only on
-    aquifer fields (47 of the 120 dry or weak ones), never on the 240 volumetric, condensate,
-    off-datum, young, compartmentalised or overpressured ones."""
-    g, c, cmp = ev.gradient_psi_per_ft, ev.curvature, ev.comparison
-    ce_fit = ev.fitted_ce_per_psi
-    if g is None or g >= th.overpressure_gradient_psi_per_ft or c is None or cmp is None or ce_fit is None:
-        return None
-    if not (c.c2_psia_per_bscf2 < 0 and c.p_value < th.curvature_p_value):
-        return None
-    single, ce = cmp.row("single_tank"), cmp.row("tank_ce")
-    if single is None or ce is None or not ce.identifiable:
-        return None
-    gain = single.aicc - ce.aicc
-    if gain < th.model_preference_delta_aicc or ce_fit <= th.normal_rock_max_ce_per_psi:
-        return None
-    return gain, ce_fit
-
-
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
     water = _water_rising(ev, th)
     # Without rising water, an aquifer model whose parameters the data do not determine
@@ -263,6 +203,7 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
     c = ev.cole
     cole = judge and cole_rising(ev, th)
     support = compressible_support(ev, th) if judge else None
+    bend = bend_followed(ev, th) if judge else None
     two, _ = _best_other(ev, th, "two_tank")
     # Rock and water expansion of an overpressured field and a small pot aquifer give the
     # same balance: there only rising water, a rising Cole plot, or a time-dependent
@@ -288,7 +229,7 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
         two is not None and model is None and not beyond_map
     )
     if not water and not (
-        (model or cole or support) and not explained_by_overpressure and not explained_by_compartments
+        (model or cole or support or bend) and not explained_by_overpressure and not explained_by_compartments
     ):
         return None
     parts, numbers = [], {}
@@ -312,6 +253,21 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
             "aquifer_model": model.name,
             "delta_aicc_vs_single_tank": _r(gain),
             "aquifer_giip_bscf": _r(model.giip_bscf),
+        }
+    if bend and not model:
+        row, gain_b, drop = bend
+        c2 = ev.curvature
+        parts.append(
+            f"on a normally pressured field ({ev.gradient_psi_per_ft:.2f} psi/ft) p/z bends "
+            f"{'down' if c2.c2_psia_per_bscf2 < 0 else 'up'} with production (p = {c2.p_value:.2g}) and the "
+            f"{row.title} follows the bend, fitting better than a single tank by {gain_b:.0f} AICc units "
+            f"with a GIIP of {row.giip_bscf:.0f} Bscf, {100 * drop:.0f} % below the straight line's"
+        )
+        numbers |= {
+            "bend_model": row.name,
+            "bend_p_value": _r(c2.p_value, 6),
+            "delta_aicc_vs_single_tank": _r(gain_b),
+            "aquifer_giip_bscf": _r(row.giip_bscf),
         }
     if support and not model:
         gain_ce, ce_fit = support

@@ -17,12 +17,9 @@ from ..compartments.extend import two_tank_recovery
 from ..diagnosis.compare import ModelComparison
 from ..errors import EngineError
 from ..inputs import FieldInputs
-from ..modelfit import ModelFit
+from ..modelfit import ModelFit, determined
 from ..prepare.points import PreparedData
 from .types import ModelOutcome
-
-#: Notes of a fit that say a parameter is not determined (the fitters' own words).
-_UNDETERMINED = ("bound", "fitted at zero", "not determined", "did not converge", "does not fall")
 
 TITLES = {
     "single_tank": "Straight p/z line (volumetric tank)",
@@ -50,20 +47,6 @@ def closed_form_eur_bscf(fit: ModelFit, prepared: PreparedData) -> float | None:
         p_a = prepared.abandonment_pz_psia * prepared.abandonment_z
         pz_a *= 1.0 - ce * (p_i - p_a)
     return max(g * (1.0 - pz_a / pzi), 0.0)
-
-
-def determined(fit: ModelFit) -> tuple[bool, str]:
-    """Whether the data determine the model's GIIP (bounded, no parameter at a search bound)."""
-    if fit.giip_bscf is None:
-        return False, "not determined: the data do not bound its GIIP"
-    if not fit.converged:
-        return False, "not determined: the fit did not converge"
-    if fit.giip_low_bscf is None or fit.giip_high_bscf is None:
-        return False, "not determined: its GIIP interval is unbounded"
-    bad = [n for n in fit.notes if any(word in n for word in _UNDETERMINED)]
-    if bad:
-        return False, "not determined: " + bad[0]
-    return True, "determined"
 
 
 def outcome(

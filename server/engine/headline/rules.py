@@ -28,8 +28,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
-from ..diagnosis.flag_rules import cole_rising, compressible_support
 from ..diagnosis.flags import Flag
+from ..diagnosis.support_signs import bend_followed, cole_rising, compressible_support
 from ..thresholds import FlagThresholds
 from .types import ModelOutcome
 
@@ -55,12 +55,16 @@ def _gain(diag: Diagnosis, model: str) -> float | None:
 
 def _independent(model: str, ev, th: FlagThresholds) -> bool:
     """Evidence for the mechanism that does not come from the fit itself."""
-    if model in AQUIFERS:  # rising water, or a Cole plot that rises without any model
+    if model in AQUIFERS:  # rising water, a Cole plot that rises, or a bend an aquifer model follows
         w = ev.water
-        return cole_rising(ev, th) or bool(
-            w
-            and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
-            and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
+        return (
+            cole_rising(ev, th)
+            or bend_followed(ev, th) is not None
+            or bool(
+                w
+                and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
+                and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
+            )
         )
     if model == "tank_ce":
         g = ev.gradient_psi_per_ft
