@@ -53,23 +53,34 @@ def _gain(diag: Diagnosis, model: str) -> float | None:
     return None if single is None or row is None else single.aicc - row.aicc
 
 
+def _water_rising(ev, th: FlagThresholds) -> bool:
+    w = ev.water
+    return bool(
+        w
+        and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
+        and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
+    )
+
+
 def _independent(model: str, ev, th: FlagThresholds) -> bool:
     """Evidence for the mechanism that does not come from the fit itself."""
     if model in AQUIFERS:  # rising water, a Cole plot that rises, or a bend an aquifer model follows
-        w = ev.water
-        return (
-            cole_rising(ev, th)
-            or bend_followed(ev, th) is not None
-            or bool(
-                w
-                and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
-                and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
-            )
-        )
+        return cole_rising(ev, th) or bend_followed(ev, th) is not None or _water_rising(ev, th)
     if model == "tank_ce":
         g = ev.gradient_psi_per_ft
         return g is not None and g >= th.overpressure_gradient_psi_per_ft
     return any(f.disagrees for f in ev.wells)
+
+
+def _need(model: str, ev, th: FlagThresholds) -> float:
+    """AICc units by which the model must beat the straight line. Formation water rising at the
+    wells shows the aquifer itself, so the line (no influx) is ruled out by the water, not the
+    surveys: an aquifer model then only has to keep some support against it (no more than
+    ``model_preference_delta_aicc`` behind; engine 0.6.8). Other independent evidence: any
+    margin; none: the preference margin."""
+    if model in AQUIFERS and _water_rising(ev, th):
+        return -th.model_preference_delta_aicc
+    return 0.0 if _independent(model, ev, th) else th.model_preference_delta_aicc
 
 
 def automatic_basis(
@@ -113,7 +124,7 @@ def automatic_basis(
                 continue
             if model in SUPPORT and line_ok and o.giip_bscf >= line.giip_bscf:
                 continue
-            need = 0.0 if _independent(model, diag.evidence, th) else th.model_preference_delta_aicc
+            need = _need(model, diag.evidence, th)
             if gain >= need:
                 qualified.append((o, gain))
     if not qualified:
