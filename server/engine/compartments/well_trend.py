@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..errors import InsufficientDataError
+from ..stats import width_limit
 
 if TYPE_CHECKING:
     from ..prepare.points import PreparedData
@@ -62,7 +63,9 @@ def robust_trend(
     weights : array, optional
         Relative weights (1/variance).
     reject_sigma : float
-        Points further than this many noise widths from the trend are set aside.
+        Points further than this many noise widths from the trend are set aside: of the
+        robust (median absolute deviation) width at the start, then of the kept points' width
+        with its own uncertainty, :func:`..stats.width_limit` at their degrees of freedom.
     max_degree : int
         Quadratic (2) with eight or more points, a line otherwise; never more than the
         number of distinct Gp values less one.
@@ -96,7 +99,12 @@ def robust_trend(
         else:  # then the honest scale of the points kept, so good points come back
             sigma = math.sqrt(float(r[kept] @ r[kept]) / max(int(kept.sum()) - degree - 1, 1))
         sigma = max(sigma, SIGMA_FLOOR_PSIA)
-        new = np.abs(r) <= reject_sigma * sigma
+        # After the robust start, the width comes from the points kept: judged at the t quantile
+        # of their degrees of freedom (a width from a handful of points is often small by
+        # chance, and rejecting by it shrinks it further until true scatter reads as "20 noise
+        # widths"; engine 0.6.8).
+        limit = reject_sigma if it == 0 else width_limit(reject_sigma, max(int(kept.sum()) - degree - 1, 1))
+        new = np.abs(r) <= limit * sigma
         too_few = new.sum() < degree + 2 or np.unique(x[new]).size <= degree
         if too_few or (it > 0 and np.array_equal(new, kept)):
             break

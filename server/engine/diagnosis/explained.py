@@ -20,7 +20,7 @@ import numpy as np
 
 from ..modelfit import ModelFit
 from ..prepare.points import PreparedData
-from ..stats import norm_cdf, t_quantile
+from ..stats import width_limit
 from ..tank.pz_screen import BEFORE_PRODUCTION_BSCF
 from .compare import ModelComparison
 from .flags import Outlier
@@ -134,15 +134,6 @@ def off_the_fit(
         if off * math.sqrt(point.weight) / math.sqrt(rest / d) >= width_limit(sigma_limit, d):
             kept.append(o)
     return tuple(kept)
-
-
-def width_limit(sigma_limit: float, dof: int) -> float:
-    """The offset, in estimated noise widths, with the tail probability that ``sigma_limit``
-    widths have when the width is known: the t quantile at the fit's ``dof`` (Student 1908;
-    a width estimated from few surveys is often small by chance, and 4 of its widths are then
-    no rarer than 3 true ones). 4 widths: 4.8 at 24 degrees of freedom, 4.2 at 100."""
-    tail = 2.0 * (1.0 - norm_cdf(sigma_limit))
-    return max(sigma_limit, t_quantile(1.0 - tail / 2.0, dof))
 
 
 def _slope_at(pz_slope):

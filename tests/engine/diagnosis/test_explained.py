@@ -95,7 +95,7 @@ def test_the_width_limit_is_the_t_quantile_with_the_tail_of_the_known_width():
     # Reference: scipy.stats (Student's t and the normal distribution).
     from scipy import stats
 
-    from server.engine.diagnosis.explained import width_limit
+    from server.engine.stats import width_limit
 
     for dof in (5, 24, 100):
         expected = stats.t.ppf(1.0 - stats.norm.sf(4.0), dof)
