@@ -141,9 +141,49 @@ def automatic_basis(
             f"({o.title}, {o.giip_bscf:.0f} Bscf) is taken as the cautious reading"
         )
     o, gain = max(qualified, key=lambda q: q[1])
-    return o.model, (
-        f"its mechanism is flagged, the data determine it, and it fits better than the straight line by "
-        f"{gain:.0f} AICc units ({o.giip_bscf:.0f} against {line.giip_bscf:.0f} Bscf)"
-        if line_ok
-        else f"its mechanism is flagged and the data determine it ({o.giip_bscf:.0f} Bscf)"
+    mapped = _inside_the_map(o, gain, qualified, diag.evidence.volumetric, th)
+    if mapped is not None:
+        (o, gain), vol = mapped, diag.evidence.volumetric
+        return o.model, (
+            f"its mechanism is flagged, the data determine it, and it fits as well as the best-fitting "
+            f"{by[max(qualified, key=lambda q: q[1])[0].model].title} (within "
+            f"{th.comparable_delta_aicc:g} AICc units), whose GIIP lies outside the volumetric range "
+            f"({vol.p90_bscf:.0f}-{vol.p10_bscf:.0f} Bscf) while its own ({o.giip_bscf:.0f} Bscf) lies inside"
+        )
+    if not line_ok:
+        return o.model, f"its mechanism is flagged and the data determine it ({o.giip_bscf:.0f} Bscf)"
+    fit = (
+        f"it fits better than the straight line by {gain:.0f} AICc units"
+        if gain >= 0
+        else f"formation water rising at the wells rules out a tank without influx, and it fits "
+        f"within {-gain:.0f} AICc units of the straight line"
     )
+    return o.model, (
+        f"its mechanism is flagged, the data determine it, and {fit} "
+        f"({o.giip_bscf:.0f} against {line.giip_bscf:.0f} Bscf)"
+    )
+
+
+def _inside_the_map(best, gain, qualified, vol, th: FlagThresholds):
+    """(outcome, gain) of another qualified aquifer model that fits comparably to ``best`` (within
+    ``comparable_delta_aicc``) and whose GIIP lies inside the volumetric P90-P10 range while
+    ``best``'s does not; else None. The surveys cannot tell the two apart; the mapped volume,
+    evidence independent of them, can (reconciling material balance with volumetrics is common
+    practice; engine 0.6.8)."""
+    if vol is None or best.model not in AQUIFERS:
+        return None
+
+    def inside(o):
+        return vol.p90_bscf <= o.giip_bscf <= vol.p10_bscf
+
+    if inside(best):
+        return None
+    near = [
+        q
+        for q in qualified
+        if q[0].model in AQUIFERS
+        and q[0] is not best
+        and gain - q[1] < th.comparable_delta_aicc
+        and inside(q[0])
+    ]
+    return max(near, key=lambda q: q[1]) if near else None
