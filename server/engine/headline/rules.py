@@ -72,13 +72,25 @@ def _independent(model: str, ev, th: FlagThresholds) -> bool:
     return any(f.disagrees for f in ev.wells)
 
 
+def _cole_strictly_rising(ev, th: FlagThresholds) -> bool:
+    c = ev.cole
+    return bool(
+        c is not None
+        and c.direction == "rising"
+        and c.p_value < th.cole_p_value
+        and c.change_frac >= th.cole_min_change_frac
+    )
+
+
 def _need(model: str, ev, th: FlagThresholds) -> float:
     """AICc units by which the model must beat the straight line. Formation water rising at the
-    wells shows the aquifer itself, so the line (no influx) is ruled out by the water, not the
-    surveys: an aquifer model then only has to keep some support against it (no more than
-    ``model_preference_delta_aicc`` behind; engine 0.6.8). Other independent evidence: any
+    wells shows the aquifer itself, and a Cole plot rising by the flag's strict rule
+    (``cole_p_value``, ``cole_min_change_frac``) shows support without any model: F/Eg of a
+    closed tank stays at G (Cole 1969; domain reference §2.3). Either rules the line (no
+    influx) out, so an aquifer model then only has to keep some support against it (no more
+    than ``model_preference_delta_aicc`` behind; engine 0.6.8). Other independent evidence: any
     margin; none: the preference margin."""
-    if model in AQUIFERS and _water_rising(ev, th):
+    if model in AQUIFERS and (_water_rising(ev, th) or _cole_strictly_rising(ev, th)):
         return -th.model_preference_delta_aicc
     return 0.0 if _independent(model, ev, th) else th.model_preference_delta_aicc
 
@@ -152,11 +164,17 @@ def automatic_basis(
         )
     if not line_ok:
         return o.model, f"its mechanism is flagged and the data determine it ({o.giip_bscf:.0f} Bscf)"
+    ev = diag.evidence
+    sign = (
+        "formation water rising at the wells"
+        if _water_rising(ev, th)
+        else f"a Cole plot rising by {100 * ev.cole.change_frac:.0f} % (p = {ev.cole.p_value:.2g})"
+    )
     fit = (
         f"it fits better than the straight line by {gain:.0f} AICc units"
         if gain >= 0
-        else f"formation water rising at the wells rules out a tank without influx, and it fits "
-        f"within {-gain:.0f} AICc units of the straight line"
+        else f"{sign} rules out a tank without influx, and it fits within {-gain:.0f} AICc units "
+        "of the straight line"
     )
     return o.model, (
         f"its mechanism is flagged, the data determine it, and {fit} "

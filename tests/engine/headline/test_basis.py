@@ -155,3 +155,26 @@ def test_the_mapped_volume_chooses_between_aquifer_models_the_surveys_cannot_tel
     unmapped = analyse_field(dataclasses.replace(built.inputs, volumetric=None))
     assert unmapped.basis.model == "aquifer_veh_radial"
     assert unmapped.giip_best_bscf < vol.p90_bscf
+
+
+def test_a_strictly_rising_cole_plot_lets_an_aquifer_model_that_trails_the_line_be_the_basis():
+    # Forward model (benchmarks/accuracy_cases.py, weak dry aquifer, seed 132: an infinite radial
+    # aquifer, condensed water only). F/Eg rises by 2 % at p = 0.005 (a closed tank's stays at
+    # G, Cole 1969), the aquifer flag fires, and the radial model trails the line by 1.5 AICc
+    # units: before engine 0.6.8 the line stayed the basis (+12 %).
+    import dataclasses
+
+    from benchmarks.accuracy_cases import CASE_BY_NAME
+    from server.engine.analysis import analyse_field
+
+    built = CASE_BY_NAME["weak_aquifer_dry"].build(132)
+    result = analyse_field(built.inputs)
+    assert result.basis.model.startswith("aquifer_")
+    assert "Cole plot rising" in result.basis.reason
+    assert "rules out a tank without influx" in result.basis.reason
+    assert abs(result.giip_best_bscf / built.truth.giip_bscf - 1.0) < 0.08
+    assert result.line_giip_best_bscf / built.truth.giip_bscf - 1.0 > 0.08
+    # A stricter Cole rule (the team setting) leaves the line as the basis.
+    th = dataclasses.replace(built.inputs.flag_thresholds, cole_p_value=0.001)
+    strict = analyse_field(dataclasses.replace(built.inputs, flag_thresholds=th))
+    assert strict.basis.model == "single_tank"
