@@ -101,13 +101,16 @@ def test_scan_convolution_is_scipy_signal_fftconvolve_bit_for_bit():
 
 
 @pytest.mark.parametrize("model", ["aquifer_fetkovich"])
-def test_a_fit_that_reaches_the_cap_is_reported_unconverged_and_not_determined(model, monkeypatch):
+def test_a_fit_that_reaches_the_cap_reports_whether_its_giip_settled(model, monkeypatch):
     # The cap (20 solves since issue 17's third round) ends only fits that walk a valley of
-    # undetermined parameters: the demo's Cindervale (a volumetric field) with an aquifer model
-    # (with scipy's trust region the van Everdingen-Hurst fit reached the cap there too; the
-    # bounded Levenberg-Marquardt of issue 17's fourth round settles it in 16 solves).
-    # Ten more solves, the old cap, do not determine them either: the GIIP moves along the
-    # valley by well under one of its standard errors, and the model stays "not determined".
+    # parameters the data do not separate: the demo's Cindervale (a volumetric field) with a
+    # Fetkovich aquifer (GIIP and J correlated at -0.998). Its GIIP has settled there: the
+    # first-order step would move ln G by 0.42 of its standard error, and 180 more solves move
+    # it by under 0.01 of it, so since engine 0.6.8 the fit counts as converged in GIIP (its
+    # parameters stay "not separately identifiable"). With a settling limit of zero it is
+    # reported as not converged, and the model is "not determined".
+    from server.engine.aquifer import match_report
+    from server.engine.modelfit import determined
     from tests.engine.cases import demo_field_inputs
 
     inputs = demo_field_inputs("Cindervale")
@@ -117,8 +120,14 @@ def test_a_fit_that_reaches_the_cap_is_reported_unconverged_and_not_determined(m
     assert hm.MAX_EVALUATIONS == 20
     fit = hm.fit_aquifer_model(inputs, prepared, model)
     assert runs[-1].nfev == 20 and runs[-1].status == 0  # ended by the cap
-    assert not fit.converged and not fit.identifiable
-    record(monkeypatch, runs, max_nfev=30)
+    assert fit.converged and not fit.identifiable
+    assert any("GIIP settled" in n for n in fit.notes) and determined(fit)[0]
+    with monkeypatch.context() as m:
+        m.setattr(match_report, "GIIP_SETTLED_SE", 0.0)
+        strict = hm.fit_aquifer_model(inputs, prepared, model)
+    assert not strict.converged and not determined(strict)[0]
+    assert any("did not converge" in n for n in strict.notes)
+    record(monkeypatch, runs, max_nfev=200)
     longer = hm.fit_aquifer_model(inputs, prepared, model)
-    assert not longer.identifiable
-    assert abs(longer.giip_bscf - fit.giip_bscf) < 0.5 * fit.param_se["giip_bscf"]
+    assert runs[-1].status > 0  # converged by the optimiser's own tests
+    assert abs(longer.giip_bscf - fit.giip_bscf) < 0.05 * fit.param_se["giip_bscf"]
