@@ -32,7 +32,7 @@ class FlagThresholds:
     curvature_p_value: float = 0.01  # significance of the p/z bend
     cole_p_value: float = 0.01  # a Cole plot "rising" by the Cole rule must also be this significant
     cole_min_change_frac: float = 0.02  # ... and rise by at least this share across the production
-    bend_model_delta_aicc: float = 4.0  # an aquifer model following a p/z bend beats the line by this
+    support_model_delta_aicc: float = 4.0  # an aquifer model a bend or the map agrees with beats the line by
     bend_min_giip_drop_frac: float = 0.05  # ... with a GIIP at least this share below the line's
     water_rise_factor: float = 2.0  # late / early water-gas ratio
     water_rise_min_stb_per_mmscf: float = 5.0  # and the late ratio at least this
@@ -102,8 +102,8 @@ THRESHOLD_LIMITS: dict[str, ThresholdLimits] = {
     "cole_min_change_frac": ThresholdLimits(
         0.0, 1.0, "fraction", "rise of F/Eg across the production a rising Cole plot needs"
     ),
-    "bend_model_delta_aicc": ThresholdLimits(
-        0.0, 100.0, "AICc", "margin over the single tank of an aquifer model following a p/z bend"
+    "support_model_delta_aicc": ThresholdLimits(
+        0.0, 100.0, "AICc", "margin over the single tank of an aquifer model a model-free sign agrees with"
     ),
     "bend_min_giip_drop_frac": ThresholdLimits(
         0.0, 0.9, "fraction", "GIIP drop below the straight line that makes a followed bend material"

@@ -7,7 +7,7 @@ import datetime as dt
 from ..compartments.well_trend import WellFinding
 from ..thresholds import FlagThresholds
 from .flags import SEVERITIES, Evidence, Flag
-from .support_signs import bend_followed, cole_rising, compressible_support
+from .support_signs import bend_followed, cole_rising, compressible_support, map_followed
 
 DEFAULT_THRESHOLDS = FlagThresholds()
 
@@ -204,6 +204,7 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
     cole = judge and cole_rising(ev, th)
     support = compressible_support(ev, th) if judge else None
     bend = bend_followed(ev, th) if judge else None
+    mapped = map_followed(ev, th) if judge and not bend else None
     two, _ = _best_other(ev, th, "two_tank")
     # Rock and water expansion of an overpressured field and a small pot aquifer give the
     # same balance: there only rising water, a rising Cole plot, or a time-dependent
@@ -228,9 +229,8 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
     explained_by_compartments = bool(_wells_disagree(ev)) or (
         two is not None and model is None and not beyond_map
     )
-    if not water and not (
-        (model or cole or support or bend) and not explained_by_overpressure and not explained_by_compartments
-    ):
+    signs = model or cole or support or bend or mapped
+    if not water and not (signs and not explained_by_overpressure and not explained_by_compartments):
         return None
     parts, numbers = [], {}
     if water:
@@ -267,6 +267,20 @@ def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | N
             "bend_model": row.name,
             "bend_p_value": _r(c2.p_value, 6),
             "delta_aicc_vs_single_tank": _r(gain_b),
+            "aquifer_giip_bscf": _r(row.giip_bscf),
+        }
+    if mapped and not model:
+        row, gain_m = mapped
+        vol, single = ev.volumetric, ev.comparison.row("single_tank")
+        parts.append(
+            f"the straight line's GIIP ({single.giip_bscf:.0f} Bscf) lies above the volumetric high case "
+            f"({vol.p10_bscf:.0f} Bscf) on a normally pressured field, and the {row.title} fits better than "
+            f"a single tank by {gain_m:.0f} AICc units with a GIIP of {row.giip_bscf:.0f} Bscf, inside the "
+            f"volumetric range ({vol.p90_bscf:.0f}-{vol.p10_bscf:.0f} Bscf)"
+        )
+        numbers |= {
+            "map_model": row.name,
+            "delta_aicc_vs_single_tank": _r(gain_m),
             "aquifer_giip_bscf": _r(row.giip_bscf),
         }
     if support and not model:

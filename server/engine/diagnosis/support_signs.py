@@ -1,5 +1,6 @@
 """Signs of pressure support that need no water data: a rising Cole plot, support that grows
-with the pressure drop, and a p/z bend an aquifer model follows. The aquifer flag
+with the pressure drop, a p/z bend an aquifer model follows, and a line above the mapped
+volume that an aquifer model brings back inside it. The aquifer flag
 (:func:`.flag_rules.aquifer_signature`) and the headline basis (:mod:`..headline.rules`) both
 read them; thresholds are team settings (docs/flags.md)."""
 
@@ -83,7 +84,7 @@ def bend_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, fl
     shrinks once p falls below about p_i/2, so p/z bends down late; an aquifer that keeps giving
     flattens it; domain reference §2.4, §2.8, §7.2); the best-ranked aquifer model whose GIIP the data
     determine (:func:`..modelfit.determined`) comparable to the best model
-    (``comparable_delta_aicc``), ahead of the single tank by ``bend_model_delta_aicc``, and with
+    (``comparable_delta_aicc``), ahead of the single tank by ``support_model_delta_aicc``, and with
     a GIIP at least ``bend_min_giip_drop_frac`` below the straight line's. Two signs that agree
     (a model-free bend and a model that explains it), where either alone needs the larger
     ``model_preference_delta_aicc``; the drop keeps a bend that changes nothing a booking would
@@ -104,7 +105,36 @@ def bend_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, fl
             continue
         gain = single.aicc - r.aicc
         drop = 1.0 - r.giip_bscf / single.giip_bscf
-        if r.delta_aicc < th.comparable_delta_aicc and gain >= th.bend_model_delta_aicc:
+        if r.delta_aicc < th.comparable_delta_aicc and gain >= th.support_model_delta_aicc:
             return (r, gain, drop) if drop >= th.bend_min_giip_drop_frac else None
+        return None
+    return None
+
+
+def map_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, float] | None:
+    """(aquifer model, gain [AICc]) when a normally pressured field's straight line puts GIIP above
+    the volumetric high case (P10) and a determined aquifer model that fits comparably to the best
+    model, ahead of the single tank by ``support_model_delta_aicc``, puts it inside the volumetric
+    P90-P10; else None.
+
+    Two signs that agree: the mapped volume, evidence independent of the surveys, says the line
+    overstates, and the surveys prefer a model with influx that gives what the map holds. A
+    straight line above the mapped volume on a normally pressured field is the classic sign of
+    an unseen aquifer (Bruns, Fetkovich & Meitzen 1965; domain reference §2.3, from memory),
+    or of a map that is wrong, which the model's better fit speaks against. Engine 0.6.8.
+    """
+    g, vol, cmp = ev.gradient_psi_per_ft, ev.volumetric, ev.comparison
+    if g is None or g >= th.overpressure_gradient_psi_per_ft or vol is None or cmp is None:
+        return None
+    single = cmp.row("single_tank")
+    if single is None or single.giip_bscf is None or not single.giip_bscf > vol.p10_bscf:
+        return None
+    for r in cmp.rows:
+        if not r.name.startswith("aquifer_") or not determined(r)[0]:
+            continue
+        gain = single.aicc - r.aicc
+        inside = vol.p90_bscf <= r.giip_bscf <= vol.p10_bscf
+        if r.delta_aicc < th.comparable_delta_aicc and gain >= th.support_model_delta_aicc and inside:
+            return r, gain
         return None
     return None

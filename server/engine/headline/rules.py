@@ -29,7 +29,7 @@ from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
 from ..diagnosis.flags import Flag
-from ..diagnosis.support_signs import bend_followed, cole_rising, compressible_support
+from ..diagnosis.support_signs import bend_followed, cole_rising, compressible_support, map_followed
 from ..thresholds import FlagThresholds
 from .types import ModelOutcome
 
@@ -64,8 +64,13 @@ def _water_rising(ev, th: FlagThresholds) -> bool:
 
 def _independent(model: str, ev, th: FlagThresholds) -> bool:
     """Evidence for the mechanism that does not come from the fit itself."""
-    if model in AQUIFERS:  # rising water, a Cole plot that rises, or a bend an aquifer model follows
-        return cole_rising(ev, th) or bend_followed(ev, th) is not None or _water_rising(ev, th)
+    if model in AQUIFERS:  # rising water, a rising Cole plot, a bend or the map an aquifer model follows
+        return (
+            cole_rising(ev, th)
+            or bend_followed(ev, th) is not None
+            or map_followed(ev, th) is not None
+            or _water_rising(ev, th)
+        )
     if model == "tank_ce":
         g = ev.gradient_psi_per_ft
         return g is not None and g >= th.overpressure_gradient_psi_per_ft
