@@ -543,3 +543,24 @@ _BUILDERS = {
 def build_case(name: str, seed: int) -> Built:
     """One field of a case: ``build_case("volumetric", 1)``."""
     return CASE_BY_NAME[name].build(seed)
+
+
+def with_systematic_errors(inputs: FieldInputs, seed: int) -> FieldInputs:
+    """The field with the systematic errors the booked range claims to cover, drawn at the team
+    defaults (:class:`server.engine.thresholds.FlagThresholds`): metered gas biased by
+    N(0, ``metered_gas_uncertainty_frac``), every survey after the first date offset by one
+    gauge error N(0, ``gauge_uncertainty_psi``), and a z-factor error that grows with depletion,
+    p (1 + ε (1 − p/p_i)) with ε ~ N(0, ``z_uncertainty_frac``). The truth is unchanged: a
+    P90-P10 range that means what it says holds it in about 80 % of such fields."""
+    import dataclasses
+
+    th = inputs.flag_thresholds
+    rng = np.random.default_rng(zlib.crc32(b"systematic") + seed)
+    meter = rng.normal(0.0, th.metered_gas_uncertainty_frac)
+    gauge = rng.normal(0.0, th.gauge_uncertainty_psi)
+    z_eps = rng.normal(0.0, th.z_uncertainty_frac)
+    p = np.asarray(inputs.survey_p_psia, float)
+    later = np.asarray(inputs.survey_t_days) > np.min(inputs.survey_t_days)
+    p = p * (1.0 + z_eps * (1.0 - p / inputs.initial_pressure_psia)) + np.where(later, gauge, 0.0)
+    gas = np.asarray(inputs.production_gas_mscf, float) * (1.0 + meter)
+    return dataclasses.replace(inputs, survey_p_psia=np.round(p, 1), production_gas_mscf=np.round(gas, 1))

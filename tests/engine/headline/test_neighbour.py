@@ -71,3 +71,20 @@ def test_a_map_off_by_a_fifth_still_sizes_it_within_five_per_cent(fields, map_er
 def test_without_a_map_there_is_no_part(fields):
     a = analyse_field(dataclasses.replace(fields[0].inputs, volumetric=None))
     assert a.basis.model == "connected_tank" and _part(a, "neighbour") is None
+
+
+def test_the_share_solves_the_two_tank_balance_exactly():
+    # Two-tank material balance by hand (domain reference §4.3): the producers' tank G1 = 60 and a
+    # neighbour G2 = 40 Bscf (the map says V = 100); when the field has produced Gp = 30 Bscf the
+    # set-apart well reads a p/z fall δ2 = 0.25, so Q = G2 δ2 = 10 Bscf crossed, the producers'
+    # own balance G1 δ1 = Gp − Q gives δ1 = 1/3, and their line reads G_app = Gp/δ1 = 90 Bscf.
+    # The share Q/Gp = 1/3 must come back exactly (before engine 0.6.8, G2 = V − G_app = 10
+    # gave 1/12).
+    from types import SimpleNamespace
+
+    from server.engine.headline.neighbour import neighbour_share
+
+    inputs = SimpleNamespace(volumetric=SimpleNamespace(p50_bscf=100.0))
+    point = SimpleNamespace(well="N-1", gp_bscf=30.0, t_days=900.0, pz_psia=0.75 * 5000.0)
+    prepared = SimpleNamespace(points=[point], initial_pz_psia=5000.0)
+    assert neighbour_share(inputs, prepared, 90.0, ("N-1",)) == pytest.approx(1.0 / 3.0, rel=1e-12)
