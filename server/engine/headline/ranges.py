@@ -16,8 +16,8 @@ combining relative uncertainties):
   ε is the gauge accuracy over the late pressure, and the z-factor correlation's error
   (or a laboratory table's);
 - **neighbour** (connected tank only): the gas a set-apart compartment has given to the
-  producers, sized from its well's depletion and the mapped volume beyond the connected
-  tank (:mod:`.neighbour`).
+  producers, sized from its well's depletion and the mapped volume beyond the producers'
+  compartment (:mod:`.neighbour`).
 """
 
 from __future__ import annotations
