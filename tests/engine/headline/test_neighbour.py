@@ -88,3 +88,23 @@ def test_the_share_solves_the_two_tank_balance_exactly():
     point = SimpleNamespace(well="N-1", gp_bscf=30.0, t_days=900.0, pz_psia=0.75 * 5000.0)
     prepared = SimpleNamespace(points=[point], initial_pz_psia=5000.0)
     assert neighbour_share(inputs, prepared, 90.0, ("N-1",)) == pytest.approx(1.0 / 3.0, rel=1e-12)
+
+
+def test_the_neighbours_gas_lowers_the_low_end_only():
+    # Gas from a neighbour can only make the producers' line read too large (Q >= 0), so the part
+    # moves the P90 down by the share and leaves the P10 where the other parts put it.
+    from server.engine.headline.ranges import booked_range
+    from server.engine.headline.types import ModelOutcome
+    from server.engine.thresholds import FlagThresholds
+
+    basis = ModelOutcome(
+        "connected_tank", "Connected tank", 80.0, 78.0, 82.0, 60.0, 0.75, 30.0, True, "determined", "closed"
+    )
+    th = FlagThresholds()
+    common = dict(scatter_sigma=0.02, fall_frac=0.4, late_pressure_psia=2500.0, lab_z=False, th=th)
+    low0, high0, _ = booked_range(basis, [], **common)
+    share = 0.12
+    low1, high1, parts = booked_range(basis, [], neighbour_sigma=-math.log(1.0 - share) / Z90, **common)
+    assert high1 == pytest.approx(high0, rel=1e-12)
+    assert low1 == pytest.approx(low0 * (1.0 - share), rel=1e-12)
+    assert "neighbour" in {p.key for p in parts}
