@@ -11,6 +11,7 @@ store as JSON with a summary in columns.
 
 from __future__ import annotations
 
+from ..diagnosis.diagnose import field_pz_slope
 from ..inputs import FieldInputs
 from ..prepare.points import prepare
 from .basis import with_forecast, with_headline
@@ -46,4 +47,6 @@ def analyse_field(inputs: FieldInputs) -> FieldAnalysis:
         Degenerate fields never raise anything else (tests/engine/test_degenerate_inputs.py).
     """
     check_choices(inputs.choices)
-    return with_diagnosis(inputs, analyse_prepared(prepare(inputs), inputs.choices))
+    prepared = prepare(inputs)
+    slope = field_pz_slope(inputs, prepared)
+    return with_diagnosis(inputs, analyse_prepared(prepared, inputs.choices, pz_slope=slope))

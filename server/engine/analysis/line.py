@@ -7,6 +7,7 @@ from __future__ import annotations
 import dataclasses
 import datetime as dt
 import math
+from functools import partial
 
 from ..errors import EngineError, InputRangeError, InsufficientDataError
 from ..inputs import OVERPRESSURE_MODES, WEIGHTINGS, AnalysisChoices
@@ -33,8 +34,9 @@ def check_choices(choices: AnalysisChoices) -> None:
         )
 
 
-def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldAnalysis:
-    """Stage 2 on prepared points (see :func:`analyse_field`)."""
+def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices, pz_slope=None) -> FieldAnalysis:
+    """Stage 2 on prepared points (see :func:`analyse_field`); ``pz_slope``: d(p/z)/dp of the
+    field's gas against pressure, for the constant-ce tank's effective variance."""
     check_choices(choices)
     mode = choices.overpressure_mode
     try:
@@ -56,11 +58,12 @@ def analyse_prepared(prepared: PreparedData, choices: AnalysisChoices) -> FieldA
             notes.append(f"No uncorrected line for comparison: {exc}.")
     screened = screened_data(prepared, pz)
     models = []
-    for fit_model in (single_tank_modelfit, tank_ce_modelfit):
+    for fit_model in (single_tank_modelfit, partial(tank_ce_modelfit, pz_slope=pz_slope)):
         try:
             models.append(fit_model(screened, choices))
         except EngineError as exc:  # a model that cannot be fitted is left out, with the reason
-            notes.append(f"{fit_model.__name__.removesuffix('_modelfit')}: not fitted ({exc}).")
+            name = getattr(fit_model, "func", fit_model).__name__.removesuffix("_modelfit")
+            notes.append(f"{name}: not fitted ({exc}).")
     g = pz.giip_range_bscf
     boot, ci = g.bootstrap, g.ci_fieller or g.ci_delta
     level = f"{100 * pz.confidence_level:.0f} %"

@@ -63,7 +63,7 @@ class Diagnosis:
 
 DEFAULT_FITTERS: tuple[tuple[str, Fitter], ...] = (
     ("single_tank", lambda i, p: single_tank_modelfit(p, i.choices)),
-    ("tank_ce", lambda i, p: tank_ce_modelfit(p, i.choices)),
+    ("tank_ce", lambda i, p: tank_ce_modelfit(p, i.choices, field_pz_slope(i, p))),
     ("two_tank", lambda i, p: fit_two_tank(i, p)),
     ("aquifer models", fit_aquifer_models),
 )
@@ -140,7 +140,7 @@ def diagnose_field(
         prepared,
         inputs.flag_thresholds.outlier_sigma,
         state.noise_psia,
-        _pz_slope(inputs, prepared),
+        field_pz_slope(inputs, prepared),
     )
     evidence = _evidence(inputs, prepared, state, comparison, wells, headline, cole, off, fits)
     labels = tuple(p.compartment for p in prepared.points if p.included)
@@ -150,7 +150,7 @@ def diagnose_field(
     )
 
 
-def _pz_slope(inputs: FieldInputs, prepared: PreparedData):
+def field_pz_slope(inputs: FieldInputs, prepared: PreparedData):
     """d(p/z)/dp [1] of the field's own z at reservoir temperature, or None if no table can be
     made (the outlier test then stays in p/z units)."""
     try:

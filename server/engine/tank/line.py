@@ -10,8 +10,15 @@ every variant is fitted to, and compared on, the same numbers. With ce fixed the
 is linear in (a, b); with ce fitted it is linear in (a, b) for each ce, and ce is found
 by a bounded one-dimensional search on the profile sum of squares.
 
-The correction factor uses the measured pressure: its error (ce x survey noise, about
-3e-4 of p/z for 20 psi) is small beside the p/z noise itself (about 3e-3).
+The correction factor uses the measured pressure, so a gauge error ε moves the residual
+y − (a + b Gp)/f by [d(p/z)/dp + (p/z) ce/f] ε, not by d(p/z)/dp ε alone: at 9,000 psia, where
+z rises with p and d(p/z)/dp is about 0.25, the second term (about 0.09 for ce = 1.7e-5) is
+not small. Given the slope d(p/z)/dp at each survey (``pz_slope``), a fitted ce weighs each
+survey by the effective variance (Orear 1982, Am. J. Phys. 50, 912, from memory):
+w [s/(s + y ce/f)]², so the sum of squares is on the scale of the p/z noise alone and compares
+with models that predict p/z without the measured pressure (engine 0.6.8; before, the
+constant-ce tank read about 35 % more misfit than the same balance solved as a pot aquifer on
+an overpressured forward-model field).
 
 Full parameter vector phi = (a, b, ce); the free parameters theta are a subset and
 phi = A theta + phi0.
@@ -57,6 +64,16 @@ def _correction(ce, d):
     return 1.0 - np.asarray(ce, float)[..., None] * d
 
 
+def _effective(w, ce, y, d, slope):
+    """Weights of the effective variance for each ce (broadcast like :func:`_correction`)."""
+    if slope is None:
+        return w
+    if np.ndim(ce):
+        f = _correction(ce, d)
+        return w * (slope / (slope + y * np.asarray(ce, float)[..., None] / f)) ** 2
+    return w * (slope / (slope + y * float(ce) / (1.0 - float(ce) * d))) ** 2
+
+
 def _ab_given_ce(ce, x, y, w, d, anchor, with_rss=True):
     """Best (a, b) and weighted RSS for each ce (vectorised over ce and/or samples of y).
 
@@ -85,7 +102,7 @@ def _wsum(coef, y):
     return y @ coef if np.ndim(coef) == 1 else (coef * y).sum(-1)
 
 
-def fit_tank_line(x, y, w, d, *, anchor=None, ce=0.0, ce_max=None) -> TankLineFit:
+def fit_tank_line(x, y, w, d, *, anchor=None, ce=0.0, ce_max=None, pz_slope=None) -> TankLineFit:
     """Fit the tank line to p/z observations.
 
     Parameters
@@ -106,6 +123,9 @@ def fit_tank_line(x, y, w, d, *, anchor=None, ce=0.0, ce_max=None) -> TankLineFi
         Upper search bound for a fitted ce [1/psi]; by default the smaller of
         ``CE_SEARCH_MAX_PER_PSI`` and 0.5/max(pi - p), so the correction factor stays
         above 0.5.
+    pz_slope : array, optional
+        d(p/z)/dp at each survey [1]: a fitted ce then weighs surveys by the effective
+        variance (module docstring); without it, by ``w`` alone.
 
     Raises
     ------
@@ -122,12 +142,13 @@ def fit_tank_line(x, y, w, d, *, anchor=None, ce=0.0, ce_max=None) -> TankLineFi
     if ce is not None:
         return _fit_fixed(x, y, w, d, anchor, float(ce))
     hi = ce_max if ce_max is not None else min(CE_SEARCH_MAX_PER_PSI, 0.5 / max(float(d.max()), 1.0))
+    s = None if pz_slope is None else np.asarray(pz_slope, float)
     grid = np.linspace(0.0, hi, 41)
-    _, _, rss = _ab_given_ce(grid, x, y, w, d, anchor)
+    _, _, rss = _ab_given_ce(grid, x, y, _effective(w, grid, y, d, s), d, anchor)
     k = int(np.argmin(rss))
     lo_b, hi_b = grid[max(k - 1, 0)], grid[min(k + 1, grid.size - 1)]
     res = minimize_scalar(
-        lambda c: float(_ab_given_ce(np.array(c), x, y, w, d, anchor)[2]),
+        lambda c: float(_ab_given_ce(np.array(c), x, y, _effective(w, c, y, d, s), d, anchor)[2]),
         bounds=(lo_b, hi_b),
         method="bounded",
         options={"xatol": hi * 1e-9},
@@ -138,9 +159,10 @@ def fit_tank_line(x, y, w, d, *, anchor=None, ce=0.0, ce_max=None) -> TankLineFi
         at_bound, c_hat = "lower", 0.0
     elif k == grid.size - 1 and c_hat >= hi * (1 - 1e-6):
         at_bound, c_hat = "upper", hi
-    a, b, _ = _ab_given_ce(np.array(c_hat), x, y, w, d, anchor)
+    w_hat = _effective(w, c_hat, y, d, s)
+    a, b, _ = _ab_given_ce(np.array(c_hat), x, y, w_hat, d, anchor)
     phi = np.array([float(a), float(b), c_hat])
-    return _linearise(x, y, w, d, anchor, phi, (0.0, hi), at_bound)
+    return _linearise(x, y, w_hat, d, anchor, phi, (0.0, hi), at_bound)
 
 
 def _free(anchor, fit_ce):

@@ -222,13 +222,22 @@ def single_tank_modelfit(prepared: PreparedData, choices: AnalysisChoices) -> Mo
     )
 
 
-def tank_ce_modelfit(prepared: PreparedData, choices: AnalysisChoices) -> ModelFit:
+def tank_ce_modelfit(prepared: PreparedData, choices: AnalysisChoices, pz_slope=None) -> ModelFit:
     """A single tank with rock and water expansion, constant ce fitted (Ramagost-Farshad form).
 
     ce is searched within [0, min(1e-4, 0.5/max(pi - p))] /psi; a fit at a bound says so.
+    ``pz_slope``: d(p/z)/dp [1] as a function of pressure [psia]; with it the surveys are
+    weighed by their effective variance (:mod:`.line`), so the misfit compares with models
+    that do not use the measured pressure in their prediction.
     """
     x, y, w, d, anchor = _observations(prepared, choices)
-    fit = fit_tank_line(x, y, w, d, anchor=anchor, ce=None)
+    slope = None
+    if pz_slope is not None:
+        p = np.array([pt.p_datum_psia for pt in prepared.points if pt.included])
+        slope = np.array([float(pz_slope(float(v))) for v in p])
+        if not (np.all(np.isfinite(slope)) and np.all(slope > 0)):
+            slope = None
+    fit = fit_tank_line(x, y, w, d, anchor=anchor, ce=None, pz_slope=slope)
     notes = []
     if fit.ce_at_bound:
         notes.append(f"ce at its {fit.ce_at_bound} search bound")

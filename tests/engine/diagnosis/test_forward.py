@@ -159,7 +159,16 @@ def test_aquifer_support_is_found_and_its_model_holds_the_truth(aquifer):
     assert "aquifer_signature" in flags
     assert not flags & {"compartment_signature", "overpressure_signature"}
     best = d.comparison.rows[0]
-    assert best.name.startswith("aquifer_")
+    if isinstance(aquifer, PotAquifer):
+        # A pot aquifer and a constant c_e are the same balance (domain reference §2.4): since
+        # engine 0.6.8 the constant-ce tank weighs its surveys by their effective variance and
+        # the two fit alike (before, it read about a third more misfit and ranked 5-11 AICc
+        # behind on overpressured fields), so either may rank first.
+        pot, ce = d.comparison.row("aquifer_pot"), d.comparison.row("tank_ce")
+        assert abs(pot.aicc - ce.aicc) < d.comparison.comparable_delta
+        assert best.name in ("aquifer_pot", "tank_ce", "aquifer_fetkovich", "aquifer_veh_radial")
+    else:
+        assert best.name.startswith("aquifer_")
     _within_interval(best, 100.0)
 
 
