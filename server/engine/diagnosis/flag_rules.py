@@ -7,7 +7,7 @@ import datetime as dt
 from ..compartments.well_trend import WellFinding
 from ..thresholds import FlagThresholds
 from .flags import SEVERITIES, Evidence, Flag
-from .support_signs import bend_followed, cole_rising, compressible_support, map_followed
+from .support_signs import bend_followed, cole_rising, compressible_support, map_followed, water_rising
 
 DEFAULT_THRESHOLDS = FlagThresholds()
 
@@ -38,7 +38,7 @@ def one_flag_per_question(found: list[Flag], ev: Evidence, th: FlagThresholds) -
     and what would separate them (domain reference §4.3)."""
     by = {f.code: f for f in found}
     aq, comp = by.get("aquifer_signature"), by.get("compartment_signature")
-    if aq is None or comp is None or _water_rising(ev, th) or _wells_disagree(ev):
+    if aq is None or comp is None or water_rising(ev, th) or _wells_disagree(ev):
         return found
     numbers = {**aq.numbers, **comp.numbers}
     reason = (
@@ -177,15 +177,6 @@ def dynamic_against_volumetric(ev: Evidence, th: FlagThresholds, judge: bool) ->
     return None
 
 
-def _water_rising(ev: Evidence, th: FlagThresholds) -> bool:
-    w = ev.water
-    return bool(
-        w
-        and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
-        and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
-    )
-
-
 def _overpressured(ev: Evidence, th: FlagThresholds) -> bool:
     g = ev.gradient_psi_per_ft
     return g is not None and g >= th.overpressure_gradient_psi_per_ft
@@ -196,7 +187,7 @@ def _wells_disagree(ev: Evidence) -> list[WellFinding]:
 
 
 def aquifer_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag | None:
-    water = _water_rising(ev, th)
+    water = water_rising(ev, th)
     # Without rising water, an aquifer model whose parameters the data do not determine
     # needs a larger margin: a flexible model also bends to the scatter.
     model, gain = _best_other(ev, th, "aquifer_", identifiable=not water) if judge else (None, None)
@@ -316,7 +307,7 @@ def compartment_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag
     if two is None and judge:
         two, gain = _best_other(ev, th, "multi_tank", strict=True)
     # Rising water explains extra support as well as a neighbour does (domain reference §4.3).
-    if not odd and (two is None or _water_rising(ev, th)):
+    if not odd and (two is None or water_rising(ev, th)):
         return None
     parts, numbers = [], {}
     for f in odd:
@@ -360,7 +351,7 @@ def overpressure_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Fla
     aquifer_fits = bool(cmp) and any(
         r.name.startswith("aquifer_") and r.delta_aicc < th.comparable_delta_aicc for r in cmp.rows
     )
-    explained_by_aquifer = _water_rising(ev, th) or aquifer_fits
+    explained_by_aquifer = water_rising(ev, th) or aquifer_fits
     if not (high or (bend and model and not explained_by_aquifer)):
         return None
     parts, numbers = [], {}

@@ -17,13 +17,29 @@ def cole_rising(ev: Evidence, th: FlagThresholds) -> bool:
     at least ``cole_min_change_frac``: a model-free sign of pressure support (Cole 1969; domain
     reference §7.2); or it rises less certainly while a determined aquifer model leads the
     ranking (:func:`_cole_and_model_agree`)."""
+    return cole_strictly_rising(ev, th) or _cole_and_model_agree(ev, th)
+
+
+def cole_strictly_rising(ev: Evidence, th: FlagThresholds) -> bool:
+    """The Cole plot rises by the Cole rule at p below ``cole_p_value`` and by at least
+    ``cole_min_change_frac`` (no model involved)."""
     c = ev.cole
     return bool(
         c is not None
         and c.direction == "rising"
         and c.p_value < th.cole_p_value
         and c.change_frac >= th.cole_min_change_frac
-    ) or _cole_and_model_agree(ev, th)
+    )
+
+
+def water_rising(ev: Evidence, th: FlagThresholds) -> bool:
+    """The water-gas ratio rose by ``water_rise_factor`` to at least ``water_rise_min_stb_per_mmscf``."""
+    w = ev.water
+    return bool(
+        w
+        and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
+        and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
+    )
 
 
 def _cole_and_model_agree(ev: Evidence, th: FlagThresholds) -> bool:

@@ -29,7 +29,14 @@ from collections.abc import Sequence
 
 from ..diagnosis.diagnose import Diagnosis
 from ..diagnosis.flags import Flag
-from ..diagnosis.support_signs import bend_followed, cole_rising, compressible_support, map_followed
+from ..diagnosis.support_signs import (
+    bend_followed,
+    cole_rising,
+    cole_strictly_rising,
+    compressible_support,
+    map_followed,
+    water_rising,
+)
 from ..thresholds import FlagThresholds
 from .types import ModelOutcome
 
@@ -53,15 +60,6 @@ def _gain(diag: Diagnosis, model: str) -> float | None:
     return None if single is None or row is None else single.aicc - row.aicc
 
 
-def _water_rising(ev, th: FlagThresholds) -> bool:
-    w = ev.water
-    return bool(
-        w
-        and w.late_wgr_stb_per_mmscf >= th.water_rise_min_stb_per_mmscf
-        and w.late_wgr_stb_per_mmscf >= th.water_rise_factor * max(w.early_wgr_stb_per_mmscf, 1e-9)
-    )
-
-
 def _independent(model: str, ev, th: FlagThresholds) -> bool:
     """Evidence for the mechanism that does not come from the fit itself."""
     if model in AQUIFERS:  # rising water, a rising Cole plot, a bend or the map an aquifer model follows
@@ -69,22 +67,12 @@ def _independent(model: str, ev, th: FlagThresholds) -> bool:
             cole_rising(ev, th)
             or bend_followed(ev, th) is not None
             or map_followed(ev, th) is not None
-            or _water_rising(ev, th)
+            or water_rising(ev, th)
         )
     if model == "tank_ce":
         g = ev.gradient_psi_per_ft
         return g is not None and g >= th.overpressure_gradient_psi_per_ft
     return any(f.disagrees for f in ev.wells)
-
-
-def _cole_strictly_rising(ev, th: FlagThresholds) -> bool:
-    c = ev.cole
-    return bool(
-        c is not None
-        and c.direction == "rising"
-        and c.p_value < th.cole_p_value
-        and c.change_frac >= th.cole_min_change_frac
-    )
 
 
 def _need(model: str, ev, th: FlagThresholds) -> float:
@@ -95,7 +83,7 @@ def _need(model: str, ev, th: FlagThresholds) -> float:
     influx) out, so an aquifer model then only has to keep some support against it (no more
     than ``model_preference_delta_aicc`` behind; engine 0.6.8). Other independent evidence: any
     margin; none: the preference margin."""
-    if model in AQUIFERS and (_water_rising(ev, th) or _cole_strictly_rising(ev, th)):
+    if model in AQUIFERS and (water_rising(ev, th) or cole_strictly_rising(ev, th)):
         return -th.model_preference_delta_aicc
     return 0.0 if _independent(model, ev, th) else th.model_preference_delta_aicc
 
@@ -172,7 +160,7 @@ def automatic_basis(
     ev = diag.evidence
     sign = (
         "formation water rising at the wells"
-        if _water_rising(ev, th)
+        if water_rising(ev, th)
         else f"a Cole plot rising by {100 * ev.cole.change_frac:.0f} % (p = {ev.cole.p_value:.2g})"
     )
     fit = (
