@@ -108,23 +108,15 @@ def bend_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, fl
     0.6.8; measured in benchmarks/README.md (bench_accuracy seeds 1-200: the three signs appear
     on aquifer fields only).
     """
-    g, c, cmp = ev.gradient_psi_per_ft, ev.curvature, ev.comparison
-    if g is None or g >= th.overpressure_gradient_psi_per_ft or c is None or cmp is None:
+    c = ev.curvature
+    if c is None or not c.p_value < th.curvature_p_value:
         return None
-    if not c.p_value < th.curvature_p_value:
+    found = _supporting_aquifer(ev, th)
+    if found is None:
         return None
-    single = cmp.row("single_tank")
-    if single is None or single.giip_bscf is None or not single.giip_bscf > 0:
-        return None
-    for r in cmp.rows:
-        if not r.name.startswith("aquifer_") or not determined(r)[0]:
-            continue
-        gain = single.aicc - r.aicc
-        drop = 1.0 - r.giip_bscf / single.giip_bscf
-        if r.delta_aicc < th.comparable_delta_aicc and gain >= th.support_model_delta_aicc:
-            return (r, gain, drop) if drop >= th.bend_min_giip_drop_frac else None
-        return None
-    return None
+    r, single, gain = found
+    drop = 1.0 - r.giip_bscf / single.giip_bscf
+    return (r, gain, drop) if drop >= th.bend_min_giip_drop_frac else None
 
 
 def map_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, float] | None:
@@ -139,18 +131,31 @@ def map_followed(ev: Evidence, th: FlagThresholds) -> tuple[ModelAssessment, flo
     an unseen aquifer (Bruns, Fetkovich & Meitzen 1965; domain reference §2.3, from memory),
     or of a map that is wrong, which the model's better fit speaks against. Engine 0.6.8.
     """
-    g, vol, cmp = ev.gradient_psi_per_ft, ev.volumetric, ev.comparison
-    if g is None or g >= th.overpressure_gradient_psi_per_ft or vol is None or cmp is None:
+    vol = ev.volumetric
+    found = None if vol is None else _supporting_aquifer(ev, th)
+    if found is None:
+        return None
+    r, single, gain = found
+    if single.giip_bscf > vol.p10_bscf and vol.p90_bscf <= r.giip_bscf <= vol.p10_bscf:
+        return r, gain
+    return None
+
+
+def _supporting_aquifer(ev: Evidence, th: FlagThresholds):
+    """(aquifer model, single tank, gain [AICc]) for the second sign of :func:`bend_followed`
+    and :func:`map_followed`: on a normally pressured field, the best-ranked aquifer model
+    whose GIIP the data determine, comparable to the best model and ahead of the single tank
+    by ``support_model_delta_aicc``; else None."""
+    g, cmp = ev.gradient_psi_per_ft, ev.comparison
+    if g is None or g >= th.overpressure_gradient_psi_per_ft or cmp is None:
         return None
     single = cmp.row("single_tank")
-    if single is None or single.giip_bscf is None or not single.giip_bscf > vol.p10_bscf:
+    if single is None or single.giip_bscf is None or not single.giip_bscf > 0:
         return None
-    for r in cmp.rows:
-        if not r.name.startswith("aquifer_") or not determined(r)[0]:
-            continue
-        gain = single.aicc - r.aicc
-        inside = vol.p90_bscf <= r.giip_bscf <= vol.p10_bscf
-        if r.delta_aicc < th.comparable_delta_aicc and gain >= th.support_model_delta_aicc and inside:
-            return r, gain
+    r = next((r for r in cmp.rows if r.name.startswith("aquifer_") and determined(r)[0]), None)
+    if r is None:
         return None
+    gain = single.aicc - r.aicc
+    if r.delta_aicc < th.comparable_delta_aicc and gain >= th.support_model_delta_aicc:
+        return r, single, gain
     return None

@@ -148,10 +148,10 @@ def automatic_basis(
     o, gain = max(qualified, key=lambda q: q[1])
     mapped = _inside_the_map(o, gain, qualified, diag.evidence.volumetric, th)
     if mapped is not None:
-        (o, gain), vol = mapped, diag.evidence.volumetric
+        best, (o, gain), vol = o, mapped, diag.evidence.volumetric
         return o.model, (
             f"its mechanism is flagged, the data determine it, and it fits as well as the best-fitting "
-            f"{by[max(qualified, key=lambda q: q[1])[0].model].title} (within "
+            f"{best.title} (within "
             f"{th.comparable_delta_aicc:g} AICc units), whose GIIP lies outside the volumetric range "
             f"({vol.p90_bscf:.0f}-{vol.p10_bscf:.0f} Bscf) while its own ({o.giip_bscf:.0f} Bscf) lies inside"
         )

@@ -71,14 +71,9 @@ def _correction(ce, d):
 REWEIGHTS = 2
 
 
-def _effective(w, ce, y, d, slope):
-    """Weights of the effective variance for each ce (broadcast like :func:`_correction`)."""
-    if slope is None:
-        return w
-    if np.ndim(ce):
-        f = _correction(ce, d)
-        return w * (slope / (slope + y * np.asarray(ce, float)[..., None] / f)) ** 2
-    return w * (slope / (slope + y * float(ce) / (1.0 - float(ce) * d))) ** 2
+def _effective(w, ce: float, y, d, slope):
+    """Weights of the effective variance at one ce: w [s/(s + y ce/f)]² (module docstring)."""
+    return w * (slope / (slope + y * ce / (1.0 - ce * d))) ** 2
 
 
 def _ab_given_ce(ce, x, y, w, d, anchor, with_rss=True):
