@@ -6,4 +6,4 @@ way). Inputs and outputs carry their units in their names; results are frozen da
 """
 
 #: Bumped whenever a change can alter a computed number; stored with every estimate.
-ENGINE_VERSION = "0.6.9"
+ENGINE_VERSION = "0.6.10"

@@ -39,6 +39,7 @@ class FlagThresholds:
     well_disagreement_sigma: float = 4.0  # median offset of a well in noise widths
     well_min_points: int = 2  # surveys of a well beyond that, on the same side
     near_initial_ratio: float = 0.25  # a well that has seen at most this share of the others' fall
+    apart_max_depletion_ratio: float = 0.75  # a well above the others that has seen at most this share
     outlier_sigma: float = 4.0  # a survey this many noise widths off the trend is an outlier
     above_initial_sigma: float = 4.0  # a survey above pi by this many noise widths ...
     above_initial_min_psia: float = 25.0  # ... and by at least this much
@@ -118,6 +119,12 @@ THRESHOLD_LIMITS: dict[str, ThresholdLimits] = {
     "well_min_points": ThresholdLimits(1, 20, "surveys", "surveys of a well beyond that, on one side", True),
     "near_initial_ratio": ThresholdLimits(
         0.0, 0.9, "fraction", "share of the others' p/z fall a well reading near initial has seen"
+    ),
+    "apart_max_depletion_ratio": ThresholdLimits(
+        0.0,
+        0.95,
+        "fraction",
+        "share of the others' p/z fall a well set apart as another compartment has seen",
     ),
     "outlier_sigma": ThresholdLimits(2.0, 20.0, "noise widths", "offset from the trend that is an outlier"),
     "above_initial_sigma": ThresholdLimits(

@@ -110,7 +110,7 @@ def _basis_params(
         pz = result.pz
         return {"initial_pz_psia": pz.intercept_psia, "giip_bscf": pz.giip_bscf, "ce_per_psi": pz.ce_per_psi}
     if model == "connected_tank":
-        fit = connected_tank_fit(screened, inputs.choices, diag.wells)
+        fit = connected_tank_fit(screened, inputs.choices, diag.wells, diag.models, diag.neighbour_wells)
         if fit is None:
             raise InsufficientDataError("the connected tank could not be fitted again")
         return fit.params

@@ -26,7 +26,7 @@ def two_tank_recovery(
     inputs: FieldInputs, prepared: PreparedData, fit: ModelFit, rate_bscf_per_day: float
 ) -> SteppedRecovery | None:
     """EUR of a fitted tank network at the abandonment p/z of its hub [Bscf], or None."""
-    if fit.name not in ("two_tank", "multi_tank") or fit.giip_bscf is None or rate_bscf_per_day <= 0:
+    if "giip_tank1_bscf" not in fit.params or fit.giip_bscf is None or rate_bscf_per_day <= 0:
         return None
     layout = _layout(inputs, prepared)
     n = len(layout.labels)

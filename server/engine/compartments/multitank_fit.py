@@ -49,6 +49,11 @@ class TankLayout:
     labelled: bool
 
 
+def network_layout(inputs: FieldInputs, prepared: PreparedData) -> TankLayout:
+    """The tanks the network fit makes of a field's labels (tank 0, the hub, holds the producers)."""
+    return _layout(inputs, prepared)
+
+
 def _layout(inputs: FieldInputs, prepared: PreparedData) -> TankLayout:
     pts = [p for p in prepared.points if p.included]
     periods = len(prepared.production_end_t_days)

@@ -12,11 +12,15 @@ else a line; points beyond a few noise widths are set aside and the fit repeated
 survey noise is estimated from the other wells' scatter about that trend. A well
 disagrees when its median offset exceeds ``k_sigma`` noise widths and most of its surveys
 (at least ``min_points``) lie beyond that on the same side. It "reads near initial" when its
-p/z has fallen by at most ``near_initial_ratio`` of the others' fall at the same Gp.
+p/z has fallen by at most ``near_initial_ratio`` of the others' fall at the same Gp, and
+stands "apart" when it disagrees from above having seen at most ``apart_ratio`` of that fall
+(another compartment or a poorly connected area that has begun to deplete through a leaky
+boundary; a gauge error of a few tens of psi cannot hold p/z a quarter of the fall up).
 """
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
@@ -126,6 +130,7 @@ class WellFinding:
     near_initial: bool  # has seen at most near_initial_ratio of the others' p/z depletion
     disagrees: bool
     reason: str
+    apart: bool = False  # above the trend, having seen at most apart_ratio of the others' fall
 
 
 def well_disagreements(
@@ -135,6 +140,7 @@ def well_disagreements(
     min_points: int = 2,
     near_initial_ratio: float = 0.25,
     min_trend_points: int = 5,
+    apart_ratio: float = 0.75,
 ) -> tuple[WellFinding, ...]:
     """Compare every surveyed well with the trend of the other wells (included surveys only).
 
@@ -161,7 +167,16 @@ def well_disagreements(
     )
     comp = {p.well: p.compartment for p in pts}
     floor = within_well_noise_psia(*arrays)
-    settings = (k_sigma, min_points, near_initial_ratio, prepared.initial_pz_psia, min_trend_points, floor)
+    apart_ratio = max(apart_ratio, near_initial_ratio)
+    settings = (
+        k_sigma,
+        min_points,
+        near_initial_ratio,
+        apart_ratio,
+        prepared.initial_pz_psia,
+        min_trend_points,
+        floor,
+    )
     odd: dict[str, WellFinding] = {}
     while True:
         active = [w for w in wells if w not in odd]
@@ -195,7 +210,7 @@ def within_well_noise_psia(gp, pz, wt, of, min_points: int = 4) -> float:
 
 
 def _judge(well, active, arrays, comp, settings) -> WellFinding | None:
-    k_sigma, min_points, near_initial_ratio, pzi, min_trend, floor = settings
+    k_sigma, min_points, near_initial_ratio, apart_ratio, pzi, min_trend, floor = settings
     gp, pz, wt, of = arrays
     mine = of == well
     others = np.isin(of, [w for w in active if w != well])
@@ -219,11 +234,14 @@ def _judge(well, active, arrays, comp, settings) -> WellFinding | None:
     own_drop = pzi - float(np.median(pz[inside]))
     ratio = own_drop / others_drop if others_drop > 0 else math.inf
     near = bool(disagrees and med > 0 and ratio <= near_initial_ratio)
-    reason = _reason(well, med, sigma, n, beyond, near, disagrees, pzi, ratio)
-    return WellFinding(well, comp.get(well), n, med, sigma, abs(med) / sigma, beyond, near, disagrees, reason)
+    apart = bool(disagrees and med > 0 and ratio <= apart_ratio)
+    reason = _reason(well, med, sigma, n, beyond, near, apart, disagrees, pzi, ratio)
+    return WellFinding(
+        well, comp.get(well), n, med, sigma, abs(med) / sigma, beyond, near, disagrees, reason, apart
+    )
 
 
-def _reason(well, med, sigma, n, beyond, near, disagrees, pzi, ratio) -> str:
+def _reason(well, med, sigma, n, beyond, near, apart, disagrees, pzi, ratio) -> str:
     side = "above" if med > 0 else "below"
     text = (
         f"{well}: p/z {abs(med):.0f} psia {side} the other wells' trend at the same cumulative production "
@@ -235,4 +253,29 @@ def _reason(well, med, sigma, n, beyond, near, disagrees, pzi, ratio) -> str:
             f"; it reads near the initial p/z of {pzi:.0f} psia, having seen "
             f"{100 * max(ratio, 0.0):.0f} % of the others' depletion"
         )
+    elif apart:
+        text += f"; it has seen only {100 * max(ratio, 0.0):.0f} % of the others' depletion of p/z"
     return text if disagrees else text + " — within what noise explains"
+
+
+#: Compartment labels given to unlabelled surveys when a well stands apart (:func:`assign_apart`).
+PRODUCERS_LABEL = "producers"
+APART_LABEL = "wells set apart"
+
+
+def assign_apart(
+    prepared: PreparedData, wells: tuple[WellFinding, ...]
+) -> tuple[PreparedData, tuple[str, ...]]:
+    """(prepared data, wells assigned): the surveys of wells standing apart labelled as a
+    neighbouring compartment and the rest as the producers', so a tank network reads the
+    neighbour's pressure from them, as it would from the team's own labels. Unchanged, with
+    no wells, when any included survey already carries a label or no well stands apart."""
+    apart = tuple(sorted(f.well for f in wells if f.apart))
+    included = [p for p in prepared.points if p.included]
+    if not apart or any(p.compartment for p in included):
+        return prepared, ()
+    points = tuple(
+        dataclasses.replace(p, compartment=APART_LABEL if p.well in apart else PRODUCERS_LABEL)
+        for p in prepared.points
+    )
+    return dataclasses.replace(prepared, points=points), apart

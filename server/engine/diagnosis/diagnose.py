@@ -9,6 +9,7 @@ wells.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -17,8 +18,8 @@ import numpy as np
 
 from ..aquifer.history_match import fit_aquifer_models
 from ..aquifer.tank_solver import field_pz_table
-from ..compartments.multitank_fit import fit_two_tank
-from ..compartments.well_trend import WellFinding, robust_trend, well_disagreements
+from ..compartments.multitank_fit import fit_two_tank, network_layout
+from ..compartments.well_trend import WellFinding, assign_apart, robust_trend, well_disagreements
 from ..errors import EngineError, InsufficientDataError
 from ..inputs import FieldInputs
 from ..modelfit import ModelFit
@@ -59,6 +60,9 @@ class Diagnosis:
     wells: tuple[WellFinding, ...]
     evidence: Evidence
     flags: tuple[Flag, ...]
+    # Wells standing apart whose surveys the two-tank fit reads as its second tank's pressure
+    # (assigned by the diagnosis, or by the team's compartment labels).
+    neighbour_wells: tuple[str, ...] = ()
 
 
 DEFAULT_FITTERS: tuple[tuple[str, Fitter], ...] = (
@@ -98,20 +102,26 @@ def diagnose_field(
         min_points=th.well_min_points,
         near_initial_ratio=th.near_initial_ratio,
         min_trend_points=th.well_trend_min_points,
+        apart_ratio=th.apart_max_depletion_ratio,
     )
     state = _field_state(inputs, prepared, wells)
     young = state.depletion_frac is not None and state.depletion_frac < th.min_depletion_frac
     fits: list[ModelFit] = []
     skipped = []
+    networked, assigned = (
+        (prepared, ()) if inputs.production_by_compartment else assign_apart(prepared, wells)
+    )
     for name, fitter in fitters:
         if young and name in MECHANISM_FITTERS:
             skipped.append((name, f"p/z has fallen {100 * state.depletion_frac:.1f} %: too little to fit"))
             continue
         try:
-            out = fitter(inputs, prepared)
+            out = fitter(inputs, networked if name == "two_tank" else prepared)
         except EngineError as exc:
             skipped.append((name, str(exc)))
             continue
+        if name == "two_tank" and assigned:
+            out = _assigned_note(out, assigned)
         fits.extend([out] if isinstance(out, ModelFit) else out)
     _, gp, pz, _ = prepared.arrays()
     comparison = (
@@ -146,8 +156,39 @@ def diagnose_field(
     labels = tuple(p.compartment for p in prepared.points if p.included)
     flags = raise_flags(evidence, th)
     return Diagnosis(
-        gp, pz, labels, cole_plots, tuple(fits), tuple(skipped), comparison, wells, evidence, flags
+        gp,
+        pz,
+        labels,
+        cole_plots,
+        tuple(fits),
+        tuple(skipped),
+        comparison,
+        wells,
+        evidence,
+        flags,
+        assigned or _labelled_apart(inputs, prepared, wells),
     )
+
+
+def _labelled_apart(inputs: FieldInputs, prepared: PreparedData, wells) -> tuple[str, ...]:
+    """Wells standing apart that the team's labels put outside the producers' (hub) tank."""
+    apart = [f for f in wells if f.disagrees and (f.near_initial or f.apart) and f.compartment]
+    if not apart:
+        return ()
+    try:
+        hub = network_layout(inputs, prepared).labels[0]
+    except EngineError:
+        return ()
+    return tuple(sorted(f.well for f in apart if f.compartment != hub))
+
+
+def _assigned_note(fit: ModelFit, wells: tuple[str, ...]) -> ModelFit:
+    """The network fit's first note (where its tanks came from) for wells assigned by the diagnosis."""
+    note = (
+        f"tank 2's pressure read from the surveys of {', '.join(wells)}, which stand apart from the "
+        "other wells' trend (no compartment labels were given)"
+    )
+    return dataclasses.replace(fit, notes=(note, *fit.notes[1:]))
 
 
 def field_pz_slope(inputs: FieldInputs, prepared: PreparedData):

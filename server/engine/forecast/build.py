@@ -87,16 +87,16 @@ def stepper_for(
 ) -> Stepper:
     """The basis model's stepper with its GIIP set to ``giip_bscf`` (other parameters kept)."""
     gp = prepared.cumulative_gas_bscf * 1e9
+    scale = giip_bscf / basis_giip_bscf
+    if model in NETWORK_MODELS or "giip_tank1_bscf" in params:  # the connected tank read from a network
+        return NetworkStepper(inputs, prepared, params, scale)
     if model in LINE_MODELS:
         ce = params.get("ce_per_psi", 0.0) if model == "tank_ce" else 0.0
         pi = prepared.initial_pz_psia * prepared.initial_z
         table = table or field_pz_table(inputs, prepared)
         return LineStepper(table, params["initial_pz_psia"], giip_bscf * 1e9, gp, ce, pi)
-    scale = giip_bscf / basis_giip_bscf
     if model in SPECS:
         return AquiferStepper(inputs, prepared, model, params, scale)
-    if model in NETWORK_MODELS:
-        return NetworkStepper(inputs, prepared, params, scale)
     raise InsufficientDataError(f"no stepper for the basis model {model!r}")
 
 

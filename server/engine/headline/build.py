@@ -42,7 +42,7 @@ def model_outcomes(
     for fit in diag.models:
         if fit.name not in given:
             out.append(outcome(fit, inputs, prepared, rate, diag.comparison))
-    connected = connected_tank_fit(prepared, inputs.choices, diag.wells)
+    connected = connected_tank_fit(prepared, inputs.choices, diag.wells, diag.models, diag.neighbour_wells)
     if connected is not None:
         out.append(outcome(connected, inputs, prepared, rate, None))
     return tuple(out)
@@ -128,7 +128,7 @@ def choose_basis(
 
 def _neighbour(inputs, prepared, diag, o: ModelOutcome) -> tuple[float | None, str | None]:
     """The connected tank's extra range part for gas from the set-apart compartment, and a note."""
-    if o.model != "connected_tank" or o.giip_bscf is None:
+    if o.model != "connected_tank" or o.giip_bscf is None or o.network_read:  # the feed is in the model
         return None, None
     apart = apart_wells(diag.wells)
     share = neighbour_share(inputs, prepared, o.giip_bscf, apart)

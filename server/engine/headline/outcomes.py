@@ -60,11 +60,11 @@ def outcome(
     ok, status = determined(fit)
     eur, method = None, "not computed: no GIIP"
     if fit.giip_bscf is not None:
-        if fit.name in ("single_tank", "tank_ce", "connected_tank"):
+        if fit.name in ("single_tank", "tank_ce", "connected_tank") and "giip_tank1_bscf" not in fit.params:
             eur, method = closed_form_eur_bscf(fit, prepared), "closed form at the abandonment pressure"
         else:
             try:
-                stepper = two_tank_recovery if fit.name in ("two_tank", "multi_tank") else aquifer_recovery
+                stepper = two_tank_recovery if "giip_tank1_bscf" in fit.params else aquifer_recovery
                 stepped = stepper(inputs, prepared, fit, rate_bscf_per_day)
             except (EngineError, ValueError, KeyError, FloatingPointError) as exc:
                 stepped, method = None, f"not computed: {exc}"
@@ -89,5 +89,6 @@ def outcome(
         eur_method=method,
         delta_aicc=None if row is None or not math.isfinite(row.delta_aicc) else row.delta_aicc,
         akaike_weight=None if row is None else row.akaike_weight,
-        hub_giip_bscf=fit.params.get("giip_tank1_bscf"),
+        hub_giip_bscf=fit.params.get("giip_tank1_bscf") if fit.name != "connected_tank" else None,
+        network_read=fit.name == "connected_tank" and "giip_tank1_bscf" in fit.params,
     )

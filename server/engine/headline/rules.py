@@ -106,10 +106,17 @@ def automatic_basis(
     if "too_little_depletion" in codes:
         return stay, "too little depletion to tell mechanisms apart: the straight p/z line, with a wide range"
     connected = by.get("connected_tank")
-    if "compartment_signature" in codes and _usable(connected, gp_bscf, th):
+    split = "compartment_signature" in codes and _usable(connected, gp_bscf, th)
+    read = (
+        "the producers' tank of the two-tank fit that reads that well's surveys (it allows for the gas "
+        "the other compartment feeds them)"
+        if connected is not None and connected.network_read
+        else "the line of the other wells"
+    )
+    if split and any(f.disagrees and f.near_initial for f in diag.wells):
         return "connected_tank", (
             "a well reads near the initial pressure while the others deplete: it sees another "
-            "compartment, so the volume connected to the producers is the line of the other wells"
+            f"compartment, so the volume connected to the producers is {read}"
         )
     families = []
     if "overpressure_signature" in codes:
@@ -134,6 +141,12 @@ def automatic_basis(
             need = _need(model, diag.evidence, th)
             if gain >= need:
                 qualified.append((o, gain))
+    if split and not any(q[0].model in NETWORKS for q in qualified):
+        return "connected_tank", (
+            "a well reads far above the others' trend, having seen little of their depletion: it "
+            f"sees another compartment, which no qualifying tank network explains, so the volume "
+            f"connected to the producers is {read}"
+        )
     if not qualified:
         if not line_ok:
             return None, "no model has a GIIP and an EUR"

@@ -43,6 +43,7 @@ class ModelOutcome:
     delta_aicc: float | None = None  # against the best model of the comparison
     akaike_weight: float | None = None
     hub_giip_bscf: float | None = None  # tank networks: the GIIP of the tank the wells produce from
+    network_read: bool = False  # connected tank read from a two-tank fit (the neighbour's feed modelled)
 
     @property
     def has_results(self) -> bool:

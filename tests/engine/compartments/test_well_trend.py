@@ -66,7 +66,20 @@ def test_a_biased_gauge_is_found_with_its_offset():
     inputs = _field(wells=[*WEST, ("W-3", None, 500.0, 1, 250.0, 80.0)])
     f = {f.well: f for f in well_disagreements(prepare(inputs))}["W-3"]
     assert f.disagrees and not f.near_initial
+    assert not f.apart  # 80 psi against a fall of about 2,000 psia: not another compartment
     assert f.median_offset_psia == pytest.approx(80.0 / 0.95, rel=0.25)
+
+
+def test_a_well_in_a_neighbour_that_has_begun_to_deplete_stands_apart():
+    # A connection ten times the Gorsewick layout's: the neighbour has lost part of its pressure
+    # by the time E-1 comes on, so E-1 no longer reads near initial; it has seen well under
+    # three quarters of the producers' fall (``apart_max_depletion_ratio``), so it stands apart.
+    inputs = _field(SecondTank(42.0, 0.6), [*WEST, ("E-1", "East", 8 * 365.25, 2, 200.0, 0.0)])
+    east = {f.well: f for f in well_disagreements(prepare(inputs))}["E-1"]
+    assert east.disagrees and east.apart and not east.near_initial
+    assert "of the others' depletion of p/z" in east.reason
+    strict = {f.well: f for f in well_disagreements(prepare(inputs), apart_ratio=0.0)}["E-1"]
+    assert strict.disagrees and not strict.apart
 
 
 def test_two_disagreeing_wells_name_the_one_that_sees_more_gas():

@@ -16,7 +16,9 @@ import pytest
 
 from benchmarks.accuracy_cases import CASE_BY_NAME
 from server.engine.analysis import analyse_field
-from server.engine.headline.ranges import Z90
+from server.engine.headline.connected import apart_wells, connected_tank_fit
+from server.engine.headline.neighbour import neighbour_share
+from server.engine.headline.ranges import Z90  # noqa: F401  (the P90 multiplier the part uses)
 from server.engine.volumetrics.estimate import volumetric_range
 
 SEEDS = range(1, 11)
@@ -31,10 +33,13 @@ def _part(result, key):
     return next((p for p in result.basis.range_parts if p.key == key), None)
 
 
-def _sized(result) -> float:
-    """G_app (1 - Q/G_p): the producers' compartment the part puts at the P90 by itself [Bscf]."""
-    part = _part(result, "neighbour")
-    return result.basis.giip_bscf * math.exp(-Z90 * part.sigma_ln)
+def _line_and_sized(inputs, result) -> tuple[float, float]:
+    """(G_app, G_app (1 - Q/G_p)) [Bscf]: the line of the other wells, and the producers'
+    compartment the neighbour part sizes from it with the field's map."""
+    apart = apart_wells(result.diagnosis.wells)
+    line = connected_tank_fit(result.prepared, inputs.choices, result.diagnosis.wells)
+    share = neighbour_share(inputs, result.prepared, line.giip_bscf, apart) or 0.0
+    return line.giip_bscf, line.giip_bscf * (1.0 - share)
 
 
 def test_the_booked_range_holds_the_producers_compartment(fields):
@@ -47,14 +52,37 @@ def test_the_booked_range_holds_the_producers_compartment(fields):
     assert len(inside) >= 6, [(t, a.giip_low_bscf, a.giip_best_bscf, a.giip_high_bscf) for t, a in results]
 
 
-def test_the_neighbours_share_sizes_the_producers_compartment(fields):
-    # The balance G_1 = G_app (1 - Q/G_p) with Q = G_2 (1 - (p/z)/(p/z)_i) at the set-apart well:
-    # against the forward model's G_1 within 3 %, where the line alone is 2-7 % high.
+def test_the_two_tank_fit_that_reads_the_set_apart_well_books_the_producers_tank(fields):
+    # Engine 0.6.10: the two-tank fit reads the late well's surveys as its second tank's pressure
+    # (the team's labels on odd seeds, the diagnosis' assignment on even ones); its producers'
+    # tank is the connected tank, within 3 % of the forward model's G_1 where the line of the
+    # other wells reads 2-8 % high. The feed is in the model, so no neighbour part is added.
+    # Where the data leave the two-tank fit undetermined (seeds 6 and 7: the neighbour's size)
+    # the line of the other wells stays the connected tank, with the neighbour part.
+    read = 0
     for f in fields:
         a = analyse_field(f.inputs)
-        assert _sized(a) == pytest.approx(f.truth.giip_bscf, rel=0.03)
-        assert a.basis.giip_bscf > f.truth.giip_bscf  # the line reads high: the part points down
-        assert any("came from the compartment of" in n for n in a.basis.notes)
+        assert a.basis.model == "connected_tank"
+        if "producers' tank of the two-tank fit" in a.basis.reason:
+            read += 1
+            assert a.giip_best_bscf == pytest.approx(f.truth.giip_bscf, rel=0.03)
+            assert _part(a, "neighbour") is None
+            assert "from the hub tank" in a.basis.notes[-1]  # EUR stepped with the neighbour
+        else:
+            assert "the line of the other wells" in a.basis.reason and _part(a, "neighbour") is not None
+            assert f.truth.giip_bscf < a.giip_best_bscf < 1.08 * f.truth.giip_bscf
+    assert read >= 8
+
+
+def test_the_neighbours_share_sizes_the_producers_compartment(fields):
+    # The balance G_1 = G_app (1 - Q/G_p) with Q = G_2 (1 - (p/z)/(p/z)_i) at the set-apart well:
+    # against the forward model's G_1 within 3 %, where the line alone is 2-7 % high (the part
+    # the range takes when no determined two-tank fit reads the set-apart well).
+    for f in fields:
+        a = analyse_field(f.inputs)
+        line, sized = _line_and_sized(f.inputs, a)
+        assert sized == pytest.approx(f.truth.giip_bscf, rel=0.03)
+        assert line > f.truth.giip_bscf  # the line reads high: the part points down
 
 
 @pytest.mark.parametrize("map_error", [0.8, 1.2])
@@ -62,15 +90,19 @@ def test_a_map_off_by_a_fifth_still_sizes_it_within_five_per_cent(fields, map_er
     for f in fields[:4]:
         v = f.inputs.volumetric
         wrong = volumetric_range(v.p90_bscf * map_error, v.p50_bscf * map_error, v.p10_bscf * map_error)
-        a = analyse_field(dataclasses.replace(f.inputs, volumetric=wrong))
-        if _part(a, "neighbour") is None:  # the map holds no more than the connected tank
+        inputs = dataclasses.replace(f.inputs, volumetric=wrong)
+        a = analyse_field(inputs)
+        line, sized = _line_and_sized(inputs, a)
+        if sized == line:  # the map holds no more than the connected tank
             continue
-        assert _sized(a) == pytest.approx(f.truth.giip_bscf, rel=0.05)
+        assert sized == pytest.approx(f.truth.giip_bscf, rel=0.05)
 
 
 def test_without_a_map_there_is_no_part(fields):
     a = analyse_field(dataclasses.replace(fields[0].inputs, volumetric=None))
     assert a.basis.model == "connected_tank" and _part(a, "neighbour") is None
+    inputs = dataclasses.replace(fields[0].inputs, volumetric=None)
+    assert neighbour_share(inputs, a.prepared, a.giip_best_bscf, apart_wells(a.diagnosis.wells)) is None
 
 
 def test_the_share_solves_the_two_tank_balance_exactly():
