@@ -34,6 +34,9 @@ TITLES = {
 }
 
 
+NETWORK_READ_TITLE = "Connected tank (the producers' tank of the two-tank fit)"
+
+
 def closed_form_eur_bscf(fit: ModelFit, prepared: PreparedData) -> float | None:
     """EUR of a straight-line or constant-ce tank at the abandonment pressure [Bscf]."""
     g = fit.giip_bscf
@@ -72,12 +75,19 @@ def outcome(
                 eur, method = stepped.eur_bscf, stepped.method
             elif method.startswith("not computed: no"):
                 method = "not computed: the model could not be stepped past the history"
+    read = fit.name == "connected_tank" and "giip_tank1_bscf" in fit.params
+    alone = closed_form_eur_bscf(fit, prepared) if read and eur is not None else None
+    if alone is not None:
+        method += (
+            f"; includes about {max(eur - alone, 0.0):.1f} Bscf the other compartment feeds the producers "
+            f"(their tank alone would give {alone:.1f} Bscf)"
+        )
     gp = prepared.cumulative_gas_bscf
     row = comparison.row(fit.name) if comparison else None
     g = fit.giip_bscf
     return ModelOutcome(
         model=fit.name,
-        title=TITLES.get(fit.name, fit.title),
+        title=NETWORK_READ_TITLE if read else TITLES.get(fit.name, fit.title),
         giip_bscf=g,
         giip_low_bscf=fit.giip_low_bscf,
         giip_high_bscf=fit.giip_high_bscf,
@@ -90,5 +100,5 @@ def outcome(
         delta_aicc=None if row is None or not math.isfinite(row.delta_aicc) else row.delta_aicc,
         akaike_weight=None if row is None else row.akaike_weight,
         hub_giip_bscf=fit.params.get("giip_tank1_bscf") if fit.name != "connected_tank" else None,
-        network_read=fit.name == "connected_tank" and "giip_tank1_bscf" in fit.params,
+        network_read=read,
     )
