@@ -109,7 +109,9 @@ def diagnose_field(
     fits: list[ModelFit] = []
     skipped = []
     networked, assigned = (
-        (prepared, ()) if inputs.production_by_compartment else assign_apart(prepared, wells)
+        (prepared, ())
+        if inputs.production_by_compartment
+        else assign_apart(prepared, _not_producing(inputs, wells))
     )
     for name, fitter in fitters:
         if young and name in MECHANISM_FITTERS:
@@ -168,6 +170,14 @@ def diagnose_field(
         flags,
         assigned or _labelled_apart(inputs, prepared, wells),
     )
+
+
+def _not_producing(inputs: FieldInputs, wells: tuple[WellFinding, ...]) -> tuple[WellFinding, ...]:
+    """The findings without wells that produced more than 1 % of the field's gas: the two-tank
+    fit takes all production from the producers' tank, which such a well would contradict."""
+    total = float(np.sum(inputs.production_gas_mscf))
+    made = {w: float(np.sum(q)) for w, q in inputs.production_by_well}
+    return tuple(f for f in wells if made.get(f.well, 0.0) <= 0.01 * total)
 
 
 def _labelled_apart(inputs: FieldInputs, prepared: PreparedData, wells) -> tuple[str, ...]:

@@ -254,3 +254,18 @@ def test_without_a_network_a_well_standing_apart_leaves_the_line_of_the_other_we
     basis = choose_basis(inputs, prepared, diag, outcomes, diag.flags, line_scatter_sigma=None)
     assert basis.model == "connected_tank" and "the line of the other wells" in basis.reason
     assert basis.giip_bscf < 1.3 * built.truth.giip_bscf  # the line through both read +69 %
+
+
+def test_a_producing_well_that_stands_apart_is_not_read_as_the_neighbours_pressure():
+    # The two-tank fit takes all production from the producers' tank; a well standing apart
+    # that produced its own share would contradict it, so the diagnosis leaves it unassigned
+    # (the team's compartment labels and production split can say where its gas came from).
+    from benchmarks.accuracy_cases import compartments_with_connection
+
+    built = compartments_with_connection(14, 4.0)
+    gas = built.inputs.production_gas_mscf
+    split = (("CM-1", 0.9 * gas), ("CM-9", 0.1 * gas))
+    result = analyse_field(dataclasses.replace(built.inputs, production_by_well=split))
+    assert next(w for w in result.diagnosis.wells if w.well == "CM-9").apart
+    assert result.diagnosis.neighbour_wells == ()
+    assert result.basis.model != "single_tank"  # still never the line through both groups
