@@ -174,7 +174,8 @@ def diagnose_field(
 
 def _not_producing(inputs: FieldInputs, wells: tuple[WellFinding, ...]) -> tuple[WellFinding, ...]:
     """The findings without wells that produced more than 1 % of the field's gas: the two-tank
-    fit takes all production from the producers' tank, which such a well would contradict."""
+    fit takes all production from the producers' tank, which such a well would contradict (a
+    well without recorded production counts as not producing)."""
     total = float(np.sum(inputs.production_gas_mscf))
     made = {w: float(np.sum(q)) for w, q in inputs.production_by_well}
     return tuple(f for f in wells if made.get(f.well, 0.0) <= 0.01 * total)

@@ -34,9 +34,6 @@ TITLES = {
 }
 
 
-NETWORK_READ_TITLE = "Connected tank (the producers' tank of the two-tank fit)"
-
-
 def closed_form_eur_bscf(fit: ModelFit, prepared: PreparedData) -> float | None:
     """EUR of a straight-line or constant-ce tank at the abandonment pressure [Bscf]."""
     g = fit.giip_bscf
@@ -87,7 +84,7 @@ def outcome(
     g = fit.giip_bscf
     return ModelOutcome(
         model=fit.name,
-        title=NETWORK_READ_TITLE if read else TITLES.get(fit.name, fit.title),
+        title=fit.title if read else TITLES.get(fit.name, fit.title),
         giip_bscf=g,
         giip_low_bscf=fit.giip_low_bscf,
         giip_high_bscf=fit.giip_high_bscf,
