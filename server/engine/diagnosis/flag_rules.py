@@ -320,7 +320,8 @@ def compartment_signature(ev: Evidence, th: FlagThresholds, judge: bool) -> Flag
         )
         numbers |= {"two_tank_giip_bscf": _r(two.giip_bscf), "delta_aicc_vs_single_tank": _r(gain)}
     near = any(f.near_initial for f in odd)
-    gauge = odd and not near and not two
+    # A well held up by a quarter of the others' fall or more is no gauge error (well_trend.py).
+    gauge = odd and not near and not two and not any(f.apart for f in odd)
     tail = (
         ": a separate compartment, a poorly connected area or a gauge error"
         if gauge

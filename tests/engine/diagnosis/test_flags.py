@@ -240,6 +240,10 @@ def test_compartments_from_a_well_or_an_identifiable_two_tank_model():
     gauge = WellFinding("W-3", None, 8, 80.0, 12.0, 6.7, 6, False, True, "W-3: p/z 80 psia above")
     (flag,) = raise_flags(_ev(wells=(gauge,)))
     assert flag.severity == "warning" and "gauge error" in flag.reason
+    # Held up by half the others' fall (it stands apart): a compartment, no gauge error.
+    apart = WellFinding("E-2", None, 8, 900.0, 12.0, 75.0, 8, False, True, "E-2: p/z 900 psia above", True)
+    (flag,) = raise_flags(_ev(wells=(apart,)))
+    assert "gauge error" not in flag.reason and "compartmentalised" in flag.reason
     assert codes(_ev(comparison=_comparison(two_tank=1500.0))) == ["compartment_signature"]
     unidentified = compare_models(
         [_fit("single_tank", 4000.0, 2, 100.0), _fit("two_tank", 1500.0, 4, 90.0, identifiable=False)],
