@@ -67,11 +67,8 @@ def _r(x, digits=1):
 
 
 def _interval(ev: Evidence) -> str:
-    kind = (
-        f"{ev.dynamic_interval_kind[0].lower()}{ev.dynamic_interval_kind[1:]} "
-        if ev.dynamic_interval_kind
-        else ""
-    )
+    k = ev.dynamic_interval_kind or ""
+    kind = f"{k[0].lower() if k[1:2].islower() else k[:1]}{k[1:]} " if k else ""  # "P90-P10" stays
     if ev.dynamic_low_bscf is not None and ev.dynamic_high_bscf is not None:
         return f"{ev.dynamic_giip_bscf:.0f} Bscf ({kind}{ev.dynamic_low_bscf:.0f}-{ev.dynamic_high_bscf:.0f})"
     return f"{ev.dynamic_giip_bscf:.0f} Bscf"

@@ -108,6 +108,9 @@ def test_dynamic_below_volumetric_quotes_the_numbers():
     assert flag.numbers["volumetric_low_bscf"] == 120.0 and flag.numbers["dynamic_giip_bscf"] == 62.0
     overlap = raise_flags(dataclasses.replace(ev, dynamic_high_bscf=125.0))
     assert overlap[0].severity == "warning"
+    # The booked range's kind keeps its capitals ("p90-P10" before engine 0.6.10).
+    (booked,) = raise_flags(dataclasses.replace(ev, dynamic_interval_kind="P90-P10"))
+    assert "62 Bscf (P90-P10 55-70)" in booked.reason
 
 
 def test_dynamic_above_volumetric():
