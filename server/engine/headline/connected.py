@@ -47,8 +47,7 @@ def set_apart(prepared: PreparedData, wells: tuple[WellFinding, ...]) -> Prepare
 
 #: Largest relative standard error of the hub tank's GIIP for the network to give the connected tank.
 MAX_HUB_RELATIVE_SE = 0.25
-TITLE = "Connected tank (wells on a separate trend set apart)"
-NETWORK_READ_TITLE = "Connected tank (the producers' tank of the two-tank fit)"
+TITLE = "Connected tank (wells on a separate trend set apart)"  # one title per key (services/words.py)
 
 
 def connected_tank_fit(
@@ -96,7 +95,7 @@ def _network_hub(models, apart: set[str], neighbour_wells, choices: AnalysisChoi
     return dataclasses.replace(
         net,
         name="connected_tank",
-        title=NETWORK_READ_TITLE,
+        title=TITLE,
         giip_bscf=g,
         giip_low_bscf=max(g - t * se, gp_bscf),
         giip_high_bscf=g + t * se,

@@ -84,7 +84,7 @@ def outcome(
     g = fit.giip_bscf
     return ModelOutcome(
         model=fit.name,
-        title=fit.title if read else TITLES.get(fit.name, fit.title),
+        title=TITLES.get(fit.name, fit.title),
         giip_bscf=g,
         giip_low_bscf=fit.giip_low_bscf,
         giip_high_bscf=fit.giip_high_bscf,
