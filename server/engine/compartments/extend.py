@@ -17,7 +17,7 @@ from ..inputs import FieldInputs
 from ..modelfit import HORIZON_YEARS, ModelFit, SteppedRecovery
 from ..prepare.points import PreparedData
 from .multitank import simulate_star_tanks
-from .multitank_fit import _layout, _problem
+from .multitank_fit import _layout, _problem, carries_tanks
 
 STEP_DAYS = 91.3
 
@@ -26,7 +26,7 @@ def two_tank_recovery(
     inputs: FieldInputs, prepared: PreparedData, fit: ModelFit, rate_bscf_per_day: float
 ) -> SteppedRecovery | None:
     """EUR of a fitted tank network at the abandonment p/z of its hub [Bscf], or None."""
-    if "giip_tank1_bscf" not in fit.params or fit.giip_bscf is None or rate_bscf_per_day <= 0:
+    if not carries_tanks(fit.params) or fit.giip_bscf is None or rate_bscf_per_day <= 0:
         return None
     layout = _layout(inputs, prepared)
     n = len(layout.labels)

@@ -49,6 +49,12 @@ class TankLayout:
     labelled: bool
 
 
+def carries_tanks(params: dict) -> bool:
+    """Whether fitted parameters are a tank network's (its tanks' GIIPs): the two-tank and star
+    fits, and the connected tank read from one (headline/connected.py)."""
+    return "giip_tank1_bscf" in params
+
+
 def network_layout(inputs: FieldInputs, prepared: PreparedData) -> TankLayout:
     """The tanks the network fit makes of a field's labels (tank 0, the hub, holds the producers)."""
     return _layout(inputs, prepared)

@@ -263,6 +263,12 @@ PRODUCERS_LABEL = "producers"
 APART_LABEL = "wells set apart"
 
 
+def apart_wells(wells: tuple[WellFinding, ...]) -> tuple[str, ...]:
+    """Wells that stand apart above the others' trend (near initial, or having seen little of
+    their depletion): another compartment."""
+    return tuple(sorted(f.well for f in wells if f.disagrees and (f.near_initial or f.apart)))
+
+
 def assign_apart(
     prepared: PreparedData, wells: tuple[WellFinding, ...]
 ) -> tuple[PreparedData, tuple[str, ...]]:
@@ -270,7 +276,7 @@ def assign_apart(
     neighbouring compartment and the rest as the producers', so a tank network reads the
     neighbour's pressure from them, as it would from the team's own labels. Unchanged, with
     no wells, when any included survey already carries a label or no well stands apart."""
-    apart = tuple(sorted(f.well for f in wells if f.apart))
+    apart = apart_wells(wells)
     included = [p for p in prepared.points if p.included]
     if not apart or any(p.compartment for p in included):
         return prepared, ()

@@ -19,7 +19,13 @@ import numpy as np
 from ..aquifer.history_match import fit_aquifer_models
 from ..aquifer.tank_solver import field_pz_table
 from ..compartments.multitank_fit import fit_two_tank, network_layout
-from ..compartments.well_trend import WellFinding, assign_apart, robust_trend, well_disagreements
+from ..compartments.well_trend import (
+    WellFinding,
+    apart_wells,
+    assign_apart,
+    robust_trend,
+    well_disagreements,
+)
 from ..errors import EngineError, InsufficientDataError
 from ..inputs import FieldInputs
 from ..modelfit import ModelFit
@@ -183,14 +189,15 @@ def _not_producing(inputs: FieldInputs, wells: tuple[WellFinding, ...]) -> tuple
 
 def _labelled_apart(inputs: FieldInputs, prepared: PreparedData, wells) -> tuple[str, ...]:
     """Wells standing apart that the team's labels put outside the producers' (hub) tank."""
-    apart = [f for f in wells if f.disagrees and (f.near_initial or f.apart) and f.compartment]
+    labelled = {f.well: f.compartment for f in wells if f.compartment}
+    apart = [w for w in apart_wells(wells) if w in labelled]
     if not apart:
         return ()
     try:
         hub = network_layout(inputs, prepared).labels[0]
     except EngineError:
         return ()
-    return tuple(sorted(f.well for f in apart if f.compartment != hub))
+    return tuple(w for w in apart if labelled[w] != hub)
 
 
 def _assigned_note(fit: ModelFit, wells: tuple[str, ...]) -> ModelFit:

@@ -16,6 +16,7 @@ import numpy as np
 
 from ..aquifer.models import SPECS
 from ..aquifer.tank_solver import PzTable
+from ..compartments.multitank_fit import carries_tanks
 from ..errors import EngineError, InputRangeError, InsufficientDataError
 from ..headline.types import Basis
 from ..inputs import FieldInputs
@@ -88,7 +89,7 @@ def stepper_for(
     """The basis model's stepper with its GIIP set to ``giip_bscf`` (other parameters kept)."""
     gp = prepared.cumulative_gas_bscf * 1e9
     scale = giip_bscf / basis_giip_bscf
-    if model in NETWORK_MODELS or "giip_tank1_bscf" in params:  # the connected tank read from a network
+    if model in NETWORK_MODELS or carries_tanks(params):  # also the connected tank read from a network
         return NetworkStepper(inputs, prepared, params, scale)
     if model in LINE_MODELS:
         ce = params.get("ce_per_psi", 0.0) if model == "tank_ce" else 0.0

@@ -20,19 +20,13 @@ import dataclasses
 import math
 from collections.abc import Sequence
 
-from ..compartments.well_trend import WellFinding
+from ..compartments.well_trend import WellFinding, apart_wells
 from ..errors import EngineError
 from ..inputs import AnalysisChoices
 from ..modelfit import ModelFit, determined
 from ..prepare.points import PreparedData
 from ..stats import t_multiplier
 from ..tank.overpressure import single_tank_modelfit
-
-
-def apart_wells(wells: tuple[WellFinding, ...]) -> tuple[str, ...]:
-    """Wells that stand apart above the others' trend (near initial, or having seen little of
-    their depletion): another compartment."""
-    return tuple(sorted(f.well for f in wells if f.disagrees and (f.near_initial or f.apart)))
 
 
 def set_apart(prepared: PreparedData, wells: tuple[WellFinding, ...]) -> PreparedData:

@@ -14,6 +14,7 @@ import math
 
 from ..aquifer.extend import aquifer_recovery
 from ..compartments.extend import two_tank_recovery
+from ..compartments.multitank_fit import carries_tanks
 from ..diagnosis.compare import ModelComparison
 from ..errors import EngineError
 from ..inputs import FieldInputs
@@ -59,12 +60,14 @@ def outcome(
     """One model's outcome; stepped models use ``rate_bscf_per_day`` beyond the history."""
     ok, status = determined(fit)
     eur, method = None, "not computed: no GIIP"
+    tanks = carries_tanks(fit.params)
+    read = fit.name == "connected_tank" and tanks  # the connected tank read from a network
     if fit.giip_bscf is not None:
-        if fit.name in ("single_tank", "tank_ce", "connected_tank") and "giip_tank1_bscf" not in fit.params:
+        if fit.name in ("single_tank", "tank_ce", "connected_tank") and not tanks:
             eur, method = closed_form_eur_bscf(fit, prepared), "closed form at the abandonment pressure"
         else:
             try:
-                stepper = two_tank_recovery if "giip_tank1_bscf" in fit.params else aquifer_recovery
+                stepper = two_tank_recovery if tanks else aquifer_recovery
                 stepped = stepper(inputs, prepared, fit, rate_bscf_per_day)
             except (EngineError, ValueError, KeyError, FloatingPointError) as exc:
                 stepped, method = None, f"not computed: {exc}"
@@ -72,7 +75,6 @@ def outcome(
                 eur, method = stepped.eur_bscf, stepped.method
             elif method.startswith("not computed: no"):
                 method = "not computed: the model could not be stepped past the history"
-    read = fit.name == "connected_tank" and "giip_tank1_bscf" in fit.params
     alone = closed_form_eur_bscf(fit, prepared) if read and eur is not None else None
     if alone is not None:
         method += (
@@ -96,6 +98,6 @@ def outcome(
         eur_method=method,
         delta_aicc=None if row is None or not math.isfinite(row.delta_aicc) else row.delta_aicc,
         akaike_weight=None if row is None else row.akaike_weight,
-        hub_giip_bscf=fit.params.get("giip_tank1_bscf") if fit.name != "connected_tank" else None,
+        hub_giip_bscf=None if read else fit.params.get("giip_tank1_bscf"),
         network_read=read,
     )

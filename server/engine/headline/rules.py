@@ -210,7 +210,7 @@ def _radial_diffusion(best, gain, qualified, th: FlagThresholds):
     only once the aquifer's boundary is felt, and the pot by instant equilibrium (Fetkovich
     1971; Dake 1978 ch. 9, from memory). When the surveys cannot tell them apart the exact
     solution is the reading to book (engine 0.6.9; bench_accuracy seeds 1-200: 1,949 → 1,952
-    fields met, the truth inside the range in 24 more aquifer fields, benchmarks/README.md)."""
+    fields met, the truth inside the range in 17 more aquifer fields, benchmarks/README.md)."""
     if best.model not in ("aquifer_pot", "aquifer_fetkovich"):
         return best, gain
     radial = [
