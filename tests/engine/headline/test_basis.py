@@ -236,6 +236,12 @@ def test_a_well_far_above_the_others_trend_is_never_booked_on_one_line_through_b
     connected = next(o for o in result.outcomes if o.model == "connected_tank")
     assert connected.network_read and connected.has_results
     assert connected.giip_bscf == pytest.approx(built.truth.giip_bscf, rel=0.03)
+    # The team setting decides it: a well must have seen less of the others' fall than
+    # ``apart_max_depletion_ratio`` to stand apart; at 0.2 CM-9 no longer does.
+    th = dataclasses.replace(built.inputs.flag_thresholds, apart_max_depletion_ratio=0.2)
+    strict = analyse_field(dataclasses.replace(built.inputs, flag_thresholds=th))
+    assert not next(w for w in strict.diagnosis.wells if w.well == "CM-9").apart
+    assert strict.diagnosis.neighbour_wells == () and strict.basis.model != "two_tank"
 
 
 def test_without_a_network_a_well_standing_apart_leaves_the_line_of_the_other_wells():
